@@ -1,0 +1,148 @@
+/**
+ * `veil build`: import every source, write the workspace (with the key) and one reading kit per
+ * reader. Everything is written into a staging folder first and moved into place at the end, so
+ * a failed build leaves the output folder as it was.
+ */
+import { existsSync, mkdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { join, resolve } from 'node:path';
+import type { StudyTemplate } from '../study/template.ts';
+import { resolveCases } from '../study/cases.ts';
+import { loadVolume } from '../images/load.ts';
+import { writeNpy } from '../images/npy.ts';
+import type { Volume } from '../images/volume.ts';
+import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeSeries, writeStudy } from '../store/workspace.ts';
+import { audit } from '../store/open.ts';
+import { readingSchedule, type ScheduledItem } from './design.ts';
+import { drawOpaqueIds, GENERATOR_NAME } from './streams.ts';
+import { toDisplayUint16 } from './display-scale.ts';
+import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
+
+export const KITS_DIR = 'kits';
+
+export class BuildError extends Error {
+  constructor(public readonly problems: string[]) {
+    super(problems.join('\n'));
+    this.name = 'BuildError';
+  }
+}
+
+export interface BuildProgress { done: number; total: number; what: string }
+
+export interface BuildSummary {
+  title: string;
+  seed: number;
+  generator: string;
+  cases: number;
+  methods: number;
+  readers: number;
+  sessions: number;
+  itemsPerReader: number;
+  workspace: string;
+  kits: { reader: string; kitId: string; path: string; items: number; perSession: number[] }[];
+}
+
+function sameGrid(a: Volume, b: Volume): boolean {
+  return a.columns === b.columns && a.rows === b.rows && a.slices === b.slices;
+}
+
+export async function buildStudy(template: StudyTemplate, outDir: string, onProgress?: (p: BuildProgress) => void): Promise<BuildSummary> {
+  const out = resolve(outDir);
+  const resolution = resolveCases(template);
+  if (resolution.problems.length) throw new BuildError(resolution.problems);
+  if (existsSync(join(out, WORKSPACE_FILE)) || existsSync(join(out, KITS_DIR))) {
+    throw new BuildError([`${out} already holds a built study (${WORKSPACE_FILE} or ${KITS_DIR}/); choose an empty folder or remove them first`]);
+  }
+  const caseIds = resolution.cases.map((c) => c.caseId);
+  const methodIds = template.methods.map((m) => m.id);
+  const schedule = readingSchedule(template.seed, template.readers, caseIds, methodIds, template.design.sessions);
+  const kitIds = drawOpaqueIds(template.seed, 'kit-ids', template.readers.length, 12);
+
+  mkdirSync(out, { recursive: true });
+  const staging = join(out, `.veil-staging-${process.pid}`);
+  rmSync(staging, { recursive: true, force: true });
+  mkdirSync(join(staging, KITS_DIR), { recursive: true });
+  const ws = openWorkspace(join(staging, WORKSPACE_FILE));
+  try {
+    const itemsByPair = new Map<string, ScheduledItem[]>();
+    for (const it of schedule) {
+      const k = `${it.caseId}\u0000${it.methodId}`;
+      itemsByPair.set(k, [...(itemsByPair.get(k) ?? []), it]);
+    }
+    const kitItems = new Map<string, Map<string, KitItem>>(template.readers.map((r) => [r, new Map()]));
+    for (const r of template.readers) mkdirSync(join(staging, KITS_DIR, r, 'images'), { recursive: true });
+    const seriesIds = new Map<string, number>();
+    const total = resolution.cases.length * (methodIds.length + (template.reference ? 1 : 0));
+    let done = 0;
+
+    const templateText = readFileSync(template.file, 'utf8');
+    ws.db.transaction(() => writeStudy(ws.db, template, templateText, GENERATOR_NAME, caseIds))();
+
+    for (const c of resolution.cases) {
+      let grid: Volume | null = null;
+      if (c.reference) {
+        const ref = await loadVolume(c.reference);
+        grid = ref;
+        seriesIds.set(`${c.caseId}\u0000`, writeSeries(ws.db, c.caseId, null, ref));
+        onProgress?.({ done: ++done, total, what: `case ${c.caseId}: reference` });
+      }
+      for (const methodId of methodIds) {
+        const v = await loadVolume(c.methods[methodId]);
+        if (grid && !sameGrid(grid, v)) {
+          throw new BuildError([`case ${c.caseId}: ${methodId} (${v.provenance.path}) is ${v.slices}x${v.rows}x${v.columns} ` +
+            `but ${grid.provenance.path} is ${grid.slices}x${grid.rows}x${grid.columns} (slices x rows x columns); every method of a case must share one grid`]);
+        }
+        grid ??= v;
+        seriesIds.set(`${c.caseId}\u0000${methodId}`, writeSeries(ws.db, c.caseId, methodId, v));
+        const display = toDisplayUint16(v.pixels);
+        const bytes = writeNpy(display.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
+        for (const it of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
+          const image = `images/${it.itemId}.npy`;
+          writeFileSync(join(staging, KITS_DIR, it.reader, image), bytes);
+          kitItems.get(it.reader)!.set(it.itemId, {
+            id: it.itemId, session: it.session, image, columns: v.columns, rows: v.rows, slices: v.slices,
+            spacing: v.spacing, window: display.window,
+          });
+        }
+        onProgress?.({ done: ++done, total, what: `case ${c.caseId}: ${methodId}` });
+      }
+    }
+
+    const createdAt = new Date().toISOString();
+    const kits: BuildSummary['kits'] = [];
+    ws.db.transaction(() => {
+      template.readers.forEach((reader, r) => {
+        const mine = schedule.filter((s) => s.reader === reader).sort((a, b) => a.position - b.position);
+        const manifest: KitManifest = {
+          format: KIT_FORMAT, version: KIT_VERSION, kitId: kitIds[r], reader, title: template.title, createdAt,
+          sessions: template.design.sessions, washoutDays: template.design.washout_days,
+          presentation: template.design.presentation,
+          questions: template.questions.map((q) => ({
+            id: q.id, text: q.text, points: q.scale.points, low: q.scale.low, high: q.scale.high,
+            labels: Object.fromEntries(Object.entries(q.labels).map(([k, v]) => [String(k), v])),
+          })),
+          items: mine.map((s) => kitItems.get(reader)!.get(s.itemId)!),
+        };
+        writeFileSync(join(staging, KITS_DIR, reader, KIT_MANIFEST), JSON.stringify(manifest, null, 1));
+        const finalPath = join(out, KITS_DIR, reader);
+        writeKit(ws.db, reader, kitIds[r], finalPath);
+        writeKitItems(ws.db, mine, (caseId, methodId) => seriesIds.get(`${caseId}\u0000${methodId}`)!);
+        const perSession = Array.from({ length: template.design.sessions }, (_, i) => mine.filter((m) => m.session === i + 1).length);
+        kits.push({ reader, kitId: kitIds[r], path: finalPath, items: mine.length, perSession });
+      });
+      audit(ws.db, 'study.built', { out, cases: caseIds.length, readers: template.readers.length, seed: template.seed, generator: GENERATOR_NAME });
+    })();
+    ws.close();
+    renameSync(join(staging, WORKSPACE_FILE), join(out, WORKSPACE_FILE));
+    renameSync(join(staging, KITS_DIR), join(out, KITS_DIR));
+    rmSync(staging, { recursive: true, force: true });
+    return {
+      title: template.title, seed: template.seed, generator: GENERATOR_NAME, cases: caseIds.length,
+      methods: methodIds.length, readers: template.readers.length, sessions: template.design.sessions,
+      itemsPerReader: caseIds.length * methodIds.length, workspace: join(out, WORKSPACE_FILE), kits,
+    };
+  } catch (e) {
+    ws.close();
+    rmSync(staging, { recursive: true, force: true });
+    throw e;
+  }
+}

@@ -1,0 +1,54 @@
+/**
+ * Opening a reading kit: the manifest, checked for shape, and its images.
+ */
+import { existsSync, readFileSync, readdirSync } from 'node:fs';
+import { join, resolve, sep } from 'node:path';
+import { readNpy } from '../images/npy.ts';
+import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
+import { KITS_DIR } from './build.ts';
+
+export function isKitFolder(dir: string): boolean {
+  return existsSync(join(dir, KIT_MANIFEST));
+}
+
+export function loadKitManifest(dir: string): KitManifest {
+  const file = join(dir, KIT_MANIFEST);
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(readFileSync(file, 'utf8'));
+  } catch (e) {
+    throw new Error(`${file}: not a readable kit manifest (${(e as Error).message})`);
+  }
+  const m = parsed as Partial<KitManifest>;
+  if (m.format !== KIT_FORMAT) throw new Error(`${file}: not a Veil reading kit (format is ${JSON.stringify(m.format)})`);
+  if (m.version !== KIT_VERSION) throw new Error(`${file}: kit version ${m.version} is not supported by this Veil (supports ${KIT_VERSION})`);
+  if (!Array.isArray(m.items) || !Array.isArray(m.questions) || typeof m.kitId !== 'string' || typeof m.reader !== 'string') {
+    throw new Error(`${file}: kit manifest is incomplete (needs kitId, reader, questions and items)`);
+  }
+  return m as KitManifest;
+}
+
+/** Kit folders of a study folder (`<dir>/kits/<reader>/`), by reader code. */
+export function findKits(studyDir: string): Map<string, string> {
+  const kitsDir = join(studyDir, KITS_DIR);
+  const out = new Map<string, string>();
+  if (!existsSync(kitsDir)) return out;
+  for (const d of readdirSync(kitsDir, { withFileTypes: true })) {
+    if (d.isDirectory() && isKitFolder(join(kitsDir, d.name))) out.set(d.name, join(kitsDir, d.name));
+  }
+  return out;
+}
+
+/** The display pixels of one item as little-endian uint16, slice-major. */
+export function readItemPixels(kitDir: string, item: KitItem): Uint16Array {
+  const root = resolve(kitDir);
+  const file = resolve(root, item.image);
+  if (!file.startsWith(root + sep)) throw new Error(`kit item ${item.id}: image path leaves the kit folder`);
+  const v = readNpy(readFileSync(file), file);
+  if (v.columns !== item.columns || v.rows !== item.rows || v.slices !== item.slices) {
+    throw new Error(`${file}: image is ${v.slices}x${v.rows}x${v.columns}, the kit manifest says ${item.slices}x${item.rows}x${item.columns}`);
+  }
+  const out = new Uint16Array(v.pixels.length);
+  for (let i = 0; i < out.length; i++) out[i] = v.pixels[i];
+  return out;
+}

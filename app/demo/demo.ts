@@ -1,0 +1,113 @@
+/**
+ * `veil demo --out DIR`: the invented demo study. Writes a template and .npy sources for six
+ * phantom cases, three reconstruction methods and a fully sampled reference, builds the study
+ * (DIR/workspace.sqlite, DIR/kits/) and fills answers from two simulated readers into the
+ * workspace, labelled `simulated`, so that report and agreement have data at once. The kits stay
+ * unanswered for a person to try the reading room.
+ */
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { writeNpy } from '../images/npy.ts';
+import { loadTemplate } from '../study/parse-template.ts';
+import { buildStudy, type BuildProgress, type BuildSummary } from '../blinding/build.ts';
+import { streamFor } from '../blinding/streams.ts';
+import { addWorkspaceAnswers, openWorkspace, type WorkspaceAnswer } from '../store/workspace.ts';
+import { audit } from '../store/open.ts';
+import { makePhantom, type PhantomShape } from './phantom.ts';
+import { addNoise, aliasGhosts, gaussianBlur } from './degrade.ts';
+import { latentScores, measureAppearance, simulatedScore, type SimulatedReader } from './simulated-readers.ts';
+
+export const DEMO_SEED = 90210;
+export const DEMO_TEMPLATE = 'demo.study.yaml';
+const SHAPE: PhantomShape = { rows: 192, columns: 192, slices: 8 };
+const CASES = ['case-01', 'case-02', 'case-03', 'case-04', 'case-05', 'case-06'];
+const READERS: SimulatedReader[] = [
+  { code: 'R1', bias: 0.25, noise: 0.55 },
+  { code: 'R2', bias: -0.3, noise: 0.7 },
+];
+
+const TEMPLATE = `# Invented demo study of Veil: synthetic phantoms, simulated readers. No patient data.
+title: Phantom brain, fourfold acceleration (demo)
+seed: ${DEMO_SEED}
+sources: sources
+reference: "{case}/reference.npy"
+methods:
+  - id: m-zerofill
+    label: Zero-filled, R=4
+    path: "{case}/zerofill.npy"
+  - id: m-iterative
+    label: Iterative, R=4
+    path: "{case}/iterative.npy"
+  - id: m-smoothed
+    label: Smoothed zero-filled, R=4
+    path: "{case}/smoothed.npy"
+cases: auto
+questions:
+  - id: sharpness
+    text: How sharp are tissue edges?
+    scale: {points: 5, low: Severely blurred, high: Crisp}
+  - id: artifacts
+    text: How free of artifacts is the image?
+    scale: {points: 5, low: Dominated by artifacts, high: No artifacts}
+  - id: confidence
+    text: How confident would a diagnosis from this image be?
+    scale: {points: 5, low: Non-diagnostic, high: Fully confident}
+    labels: {1: Non-diagnostic, 3: Adequate, 5: Excellent}
+readers: [${READERS.map((r) => r.code).join(', ')}]
+design:
+  presentation: single
+  sessions: 2
+  washout_days: 14
+`;
+
+export interface DemoSummary { template: string; build: BuildSummary; simulatedAnswers: number }
+
+export async function writeDemo(outDir: string, onProgress?: (p: BuildProgress) => void): Promise<DemoSummary> {
+  const methodsOf = (ref: Float32Array, rng = streamFor(DEMO_SEED, 'demo-noise')) => {
+    const zerofill = addNoise(aliasGhosts(ref, SHAPE, 4, 0.22), 0.035, rng);
+    return {
+      'm-zerofill': zerofill,
+      'm-iterative': addNoise(gaussianBlur(ref, SHAPE, 0.6), 0.012, rng),
+      'm-smoothed': gaussianBlur(zerofill, SHAPE, 1.8),
+    };
+  };
+  const files = { 'm-zerofill': 'zerofill.npy', 'm-iterative': 'iterative.npy', 'm-smoothed': 'smoothed.npy' } as const;
+  const latent = new Map<string, ReturnType<typeof latentScores>>();
+  for (const caseId of CASES) {
+    const dir = join(outDir, 'sources', caseId);
+    mkdirSync(dir, { recursive: true });
+    const truth = makePhantom(streamFor(DEMO_SEED, 'demo-phantom', caseId), SHAPE);
+    const noiseRng = streamFor(DEMO_SEED, 'demo-noise', caseId);
+    const reference = addNoise(truth, 0.006, noiseRng);
+    const shape = [SHAPE.slices, SHAPE.rows, SHAPE.columns];
+    writeFileSync(join(dir, 'reference.npy'), writeNpy(reference, shape));
+    for (const [methodId, img] of Object.entries(methodsOf(truth, noiseRng))) {
+      writeFileSync(join(dir, files[methodId as keyof typeof files]), writeNpy(img, shape));
+      latent.set(`${caseId}/${methodId}`, latentScores(measureAppearance(img, reference, SHAPE)));
+    }
+  }
+  const templatePath = join(outDir, DEMO_TEMPLATE);
+  writeFileSync(templatePath, TEMPLATE);
+  const build = await buildStudy(loadTemplate(templatePath), outDir, onProgress);
+
+  const ws = openWorkspace(build.workspace);
+  try {
+    const items = ws.db.prepare('SELECT item_id, reader_code, case_id, method_id FROM kit_item ORDER BY reader_code, position').all() as
+      { item_id: string; reader_code: string; case_id: string; method_id: string }[];
+    const answers: WorkspaceAnswer[] = [];
+    for (const reader of READERS) {
+      const rng = streamFor(DEMO_SEED, 'demo-simulated-reader', reader.code);
+      for (const it of items.filter((i) => i.reader_code === reader.code)) {
+        const l = latent.get(`${it.case_id}/${it.method_id}`)!;
+        for (const q of ['sharpness', 'artifacts', 'confidence'] as const) {
+          answers.push({ itemId: it.item_id, questionId: q, score: simulatedScore(l[q], reader, rng), seconds: null, source: 'simulated' });
+        }
+      }
+    }
+    addWorkspaceAnswers(ws.db, answers);
+    audit(ws.db, 'demo.simulated-answers', { readers: READERS.map((r) => r.code), answers: answers.length, note: 'simulated readers, not people' });
+    return { template: templatePath, build, simulatedAnswers: answers.length };
+  } finally {
+    ws.close();
+  }
+}

@@ -1,0 +1,149 @@
+/**
+ * Versioned schema migrations. Each database kind has an ordered list; `PRAGMA user_version`
+ * records how many have been applied. A migration runs in one transaction with its version bump,
+ * so a crash mid-migration leaves the previous version intact.
+ */
+import type Database from 'better-sqlite3';
+
+export interface Migration { version: number; description: string; sql: string }
+
+/** Rows of the answer log are never changed or removed: a new score is a new revision. */
+const appendOnlyAnswers = (table: string) => `
+CREATE TRIGGER ${table}_no_update BEFORE UPDATE ON ${table}
+BEGIN SELECT RAISE(ABORT, 'answers are append-only: add a revision instead of changing one'); END;
+CREATE TRIGGER ${table}_no_delete BEFORE DELETE ON ${table}
+BEGIN SELECT RAISE(ABORT, 'answers are append-only: they cannot be deleted'); END;
+`;
+
+export const workspaceMigrations: Migration[] = [
+  {
+    version: 1,
+    description: 'study, methods, cases, series, readers, kits, key, answers, audit log',
+    sql: `
+CREATE TABLE study (
+  id INTEGER PRIMARY KEY CHECK (id = 1),
+  title TEXT NOT NULL,
+  seed INTEGER NOT NULL,
+  generator TEXT NOT NULL,
+  template_path TEXT NOT NULL,
+  template_text TEXT NOT NULL,
+  created_at TEXT NOT NULL
+);
+CREATE TABLE method (
+  id TEXT PRIMARY KEY,
+  label TEXT NOT NULL,
+  path_pattern TEXT NOT NULL,
+  position INTEGER NOT NULL
+);
+CREATE TABLE study_case (
+  id TEXT PRIMARY KEY,
+  position INTEGER NOT NULL
+);
+CREATE TABLE question (
+  id TEXT PRIMARY KEY,
+  text TEXT NOT NULL,
+  points INTEGER NOT NULL,
+  position INTEGER NOT NULL
+);
+CREATE TABLE series (
+  id INTEGER PRIMARY KEY,
+  case_id TEXT NOT NULL REFERENCES study_case(id),
+  method_id TEXT REFERENCES method(id),
+  role TEXT NOT NULL CHECK (role IN ('method', 'reference')),
+  path TEXT NOT NULL,
+  format TEXT NOT NULL,
+  sha256 TEXT NOT NULL,
+  columns INTEGER NOT NULL,
+  rows INTEGER NOT NULL,
+  slices INTEGER NOT NULL,
+  spacing TEXT NOT NULL,
+  UNIQUE (case_id, method_id, role)
+);
+CREATE TABLE reader (
+  code TEXT PRIMARY KEY,
+  position INTEGER NOT NULL
+);
+CREATE TABLE kit (
+  reader_code TEXT PRIMARY KEY REFERENCES reader(code),
+  kit_id TEXT NOT NULL UNIQUE,
+  path TEXT NOT NULL,
+  created_at TEXT NOT NULL
+);
+-- The key: opaque item id -> case and method. Coordinator side only; never written to a kit.
+CREATE TABLE kit_item (
+  item_id TEXT PRIMARY KEY,
+  reader_code TEXT NOT NULL REFERENCES reader(code),
+  position INTEGER NOT NULL,
+  session INTEGER NOT NULL,
+  case_id TEXT NOT NULL REFERENCES study_case(id),
+  method_id TEXT NOT NULL REFERENCES method(id),
+  series_id INTEGER NOT NULL REFERENCES series(id),
+  UNIQUE (reader_code, position)
+);
+CREATE TABLE answer (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  item_id TEXT NOT NULL REFERENCES kit_item(item_id),
+  question_id TEXT NOT NULL REFERENCES question(id),
+  score INTEGER NOT NULL,
+  revision INTEGER NOT NULL,
+  seconds REAL,
+  answered_at TEXT NOT NULL,
+  source TEXT NOT NULL CHECK (source IN ('collected', 'simulated')),
+  UNIQUE (item_id, question_id, revision)
+);
+${appendOnlyAnswers('answer')}
+CREATE TABLE audit (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  at TEXT NOT NULL,
+  action TEXT NOT NULL,
+  detail TEXT NOT NULL
+);
+`,
+  },
+];
+
+export const readerMigrations: Migration[] = [
+  {
+    version: 1,
+    description: 'kit identity, answers, audit log of the reading room',
+    sql: `
+CREATE TABLE kit_info (
+  key TEXT PRIMARY KEY,
+  value TEXT NOT NULL
+);
+CREATE TABLE answer (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  item_id TEXT NOT NULL,
+  question_id TEXT NOT NULL,
+  score INTEGER NOT NULL,
+  revision INTEGER NOT NULL,
+  seconds REAL,
+  answered_at TEXT NOT NULL,
+  UNIQUE (item_id, question_id, revision)
+);
+${appendOnlyAnswers('answer')}
+CREATE TABLE audit (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  at TEXT NOT NULL,
+  action TEXT NOT NULL,
+  detail TEXT NOT NULL
+);
+`,
+  },
+];
+
+export function migrate(db: Database.Database, migrations: Migration[], file: string): number {
+  const current = db.pragma('user_version', { simple: true }) as number;
+  const latest = migrations.at(-1)?.version ?? 0;
+  if (current > latest) {
+    throw new Error(`${file} was written by a newer Veil (schema version ${current}; this one knows up to ${latest}). Update Veil to open it.`);
+  }
+  for (const m of migrations) {
+    if (m.version <= current) continue;
+    db.transaction(() => {
+      db.exec(m.sql);
+      db.pragma(`user_version = ${m.version}`);
+    })();
+  }
+  return latest;
+}

@@ -1,0 +1,19 @@
+/** Hash routes, so a reload comes back to the same screen: `#/` (choose reader), `#/read/<code>`. */
+export type Route = { name: 'home' } | { name: 'read'; reader: string };
+
+function parse(hash: string): Route {
+  const m = /^#\/read\/([^/]+)$/.exec(hash);
+  return m ? { name: 'read', reader: decodeURIComponent(m[1]) } : { name: 'home' };
+}
+
+class RouteStore {
+  current = $state<Route>(parse(window.location.hash));
+  constructor() {
+    window.addEventListener('hashchange', () => { this.current = parse(window.location.hash); });
+  }
+  go(route: Route): void {
+    window.location.hash = route.name === 'read' ? `#/read/${encodeURIComponent(route.reader)}` : '#/';
+  }
+}
+
+export const route = new RouteStore();
