@@ -35,15 +35,15 @@ test('the Electron window opens the demo study with isolation, sandbox and the n
   try {
     const win = await app.firstWindow();
     await expect(win.getByRole('heading', { name: /Phantom brain/ })).toBeVisible({ timeout: 30_000 });
-    const surface = await win.evaluate(() => ({
-      require: typeof (window as unknown as { require?: unknown }).require,
-      process: typeof (window as unknown as { process?: unknown }).process,
-      bridge: Object.keys((window as unknown as { veil: object }).veil).sort(),
-    }));
+    const surface = await win.evaluate(() => {
+      const w = globalThis as unknown as { require?: unknown; process?: unknown; veil: object };
+      return { require: typeof w.require, process: typeof w.process, bridge: Object.keys(w.veil).sort() };
+    });
     expect(surface).toEqual({ require: 'undefined', process: 'undefined', bridge: ['info', 'itemPixels', 'listReaders', 'openKit', 'submitAnswer'] });
     const prefs = await app.evaluate(({ BrowserWindow }) => {
       const w = BrowserWindow.getAllWindows()[0];
-      const p = w.webContents.getLastWebPreferences?.() as Record<string, unknown> | undefined;
+      const contents = w.webContents as unknown as { getLastWebPreferences?: () => Record<string, unknown> };
+      const p = contents.getLastWebPreferences?.();
       return p ? { contextIsolation: p.contextIsolation, sandbox: p.sandbox, nodeIntegration: p.nodeIntegration } : null;
     });
     if (prefs) expect(prefs).toEqual({ contextIsolation: true, sandbox: true, nodeIntegration: false });
