@@ -32,6 +32,14 @@ test('a reader scores three items by keyboard, reloads, and resumes at item 4 wi
   await page.keyboard.press('ArrowLeft');
   await page.keyboard.press('ArrowLeft');
   await expect(page.getByTestId('slice-label')).toHaveText('Slice 4 / 8');
+  // Dragging changes window and level.
+  const before = await page.getByText(/^W \d+ · L \d+$/).textContent();
+  const box = (await page.getByTestId('viewer').boundingBox())!;
+  await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
+  await page.mouse.down();
+  await page.mouse.move(box.x + box.width / 2 - 120, box.y + box.height / 2 + 60, { steps: 6 });
+  await page.mouse.up();
+  await expect(page.getByText(/^W \d+ · L \d+$/)).not.toHaveText(before!);
   await page.screenshot({ path: 'test-results/screens/reading-room.png' });
 
   // Enter without every score is refused with a message beside the questions.
@@ -64,6 +72,13 @@ test('a reader scores three items by keyboard, reloads, and resumes at item 4 wi
   expect(items).toHaveLength(3);
   expect(items.map((id) => rows.filter((r) => r.item_id === id).map((r) => r.score))).toEqual(given);
   expect(errors).toEqual([]);
+
+  // Restarting the host (a new launch, a new token) resumes at the same place.
+  await host.stop();
+  host = await serve(dir);
+  await page.goto(`${host.url}#/read/R1`);
+  await expect(page.getByTestId('progress-text')).toHaveText('Item 4 of 18');
+  await expect(page.getByText('3 scored')).toBeVisible();
 });
 
 test('API calls without the token are refused', async ({ request }) => {
