@@ -34,14 +34,20 @@ export interface KitQuestionView {
   labels: Record<string, string>;
 }
 
-export interface KitItemView {
-  id: string;
-  session: number;
+/** Geometry and default window of one image of an item. */
+export interface KitImageView {
   columns: number;
   rows: number;
   slices: number;
   spacing: [number, number, number];
   window: { center: number; width: number };
+}
+
+export interface KitItemView {
+  id: string;
+  session: number;
+  /** One view for single presentation; two (left, right) for side-by-side. */
+  views: KitImageView[];
 }
 
 export interface KitView {
@@ -68,8 +74,8 @@ export interface VeilApi {
   info(): Promise<AppInfo>;
   listReaders(): Promise<ReaderEntry[]>;
   openKit(req: { reader: string }): Promise<KitView>;
-  /** Display pixels of one item: little-endian uint16, slice-major (slice, row, column). */
-  itemPixels(req: { reader: string; itemId: string }): Promise<ArrayBuffer>;
+  /** Display pixels of one view of an item (default 0): little-endian uint16, slice-major (slice, row, column). */
+  itemPixels(req: { reader: string; itemId: string; view?: number }): Promise<ArrayBuffer>;
   /** Resolves only once the answer is durable on disk. */
   submitAnswer(req: SubmitRequest): Promise<{ progress: Progress }>;
 }

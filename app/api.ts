@@ -5,7 +5,7 @@
  */
 import { join, resolve } from 'node:path';
 import { ApiError, OPERATIONS, type AppInfo, type KitView, type Progress, type ReaderEntry, type SubmitRequest, type VeilApi } from './api-contract.ts';
-import { findKits, isKitFolder, loadKitManifest, readItemPixels } from './blinding/kit-read.ts';
+import { findKits, isKitFolder, loadKitManifest, readViewPixels } from './blinding/kit-read.ts';
 import type { KitManifest } from './blinding/kit-format.ts';
 import { ANSWERS_FILE, currentScores, openReaderAnswers, recordSubmission } from './store/reader-answers.ts';
 import type { OpenedDatabase } from './store/open.ts';
@@ -72,16 +72,20 @@ export function createApi(root: string): ApiHandle {
       return {
         kitId: m.kitId, reader: m.reader, title: m.title, sessions: m.sessions,
         questions: m.questions,
-        items: m.items.map(({ id, session, columns, rows, slices, spacing, window }) => ({ id, session, columns, rows, slices, spacing, window })),
+        items: m.items.map(({ id, session, views }) => ({
+          id, session, views: views.map(({ columns, rows, slices, spacing, window }) => ({ columns, rows, slices, spacing, window })),
+        })),
         answers: Object.fromEntries(scores),
         progress: progressOf(m, scores),
       };
     },
-    async itemPixels({ reader, itemId }) {
+    async itemPixels({ reader, itemId, view = 0 }) {
       const k = kitOf(reader);
       const item = k.manifest.items.find((i) => i.id === itemId);
       if (!item) throw new ApiError(`kit of reader '${reader}' has no item '${itemId}'`, 404);
-      const px = readItemPixels(k.dir, item);
+      const v = item.views[view];
+      if (!v) throw new ApiError(`item '${itemId}' has no view ${view} (it has ${item.views.length})`, 404);
+      const px = readViewPixels(k.dir, v);
       return px.buffer.slice(px.byteOffset, px.byteOffset + px.byteLength) as ArrayBuffer;
     },
     async submitAnswer(req: SubmitRequest) {

@@ -99,8 +99,8 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
           const image = `images/${it.itemId}.npy`;
           writeFileSync(join(staging, KITS_DIR, it.reader, image), bytes);
           kitItems.get(it.reader)!.set(it.itemId, {
-            id: it.itemId, session: it.session, image, columns: v.columns, rows: v.rows, slices: v.slices,
-            spacing: v.spacing, window: display.window,
+            id: it.itemId, session: it.session,
+            views: [{ image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: display.window }],
           });
         }
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: ${methodId}` });

@@ -16,9 +16,8 @@ export interface KitQuestion {
   labels: Record<string, string>;
 }
 
-export interface KitItem {
-  id: string;
-  session: number;
+/** One image volume of an item. */
+export interface KitImage {
   /** Relative to the kit folder. */
   image: string;
   columns: number;
@@ -26,6 +25,13 @@ export interface KitItem {
   slices: number;
   spacing: [number, number, number];
   window: { center: number; width: number };
+}
+
+export interface KitItem {
+  id: string;
+  session: number;
+  /** One view for single presentation; two (left, right) for side-by-side. */
+  views: KitImage[];
 }
 
 export interface KitManifest {

@@ -4,7 +4,7 @@
 import { existsSync, readFileSync, readdirSync } from 'node:fs';
 import { join, resolve, sep } from 'node:path';
 import { readNpy } from '../images/npy.ts';
-import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
+import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitImage, type KitManifest } from './kit-format.ts';
 import { KITS_DIR } from './build.ts';
 
 export function isKitFolder(dir: string): boolean {
@@ -39,14 +39,14 @@ export function findKits(studyDir: string): Map<string, string> {
   return out;
 }
 
-/** The display pixels of one item as little-endian uint16, slice-major. */
-export function readItemPixels(kitDir: string, item: KitItem): Uint16Array {
+/** The display pixels of one view of an item as little-endian uint16, slice-major. */
+export function readViewPixels(kitDir: string, view: KitImage): Uint16Array {
   const root = resolve(kitDir);
-  const file = resolve(root, item.image);
-  if (!file.startsWith(root + sep)) throw new Error(`kit item ${item.id}: image path leaves the kit folder`);
+  const file = resolve(root, view.image);
+  if (!file.startsWith(root + sep)) throw new Error(`kit image ${view.image}: path leaves the kit folder`);
   const v = readNpy(readFileSync(file), file);
-  if (v.columns !== item.columns || v.rows !== item.rows || v.slices !== item.slices) {
-    throw new Error(`${file}: image is ${v.slices}x${v.rows}x${v.columns}, the kit manifest says ${item.slices}x${item.rows}x${item.columns}`);
+  if (v.columns !== view.columns || v.rows !== view.rows || v.slices !== view.slices) {
+    throw new Error(`${file}: image is ${v.slices}x${v.rows}x${v.columns}, the kit manifest says ${view.slices}x${view.rows}x${view.columns}`);
   }
   const out = new Uint16Array(v.pixels.length);
   for (let i = 0; i < out.length; i++) out[i] = v.pixels[i];

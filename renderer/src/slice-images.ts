@@ -3,27 +3,28 @@
  * `veil:<item>:<slice>`, its pixels a view into the item's uint16 buffer (no copy).
  */
 import cornerstone, { type CornerstoneImage } from 'cornerstone-core';
-import type { KitItemView } from '../../app/api-contract.ts';
+import type { KitImageView } from '../../app/api-contract.ts';
 
-const volumes = new Map<string, { item: KitItemView; pixels: Uint16Array; min: number; max: number }>();
+/** Volumes by key (`<item>~<view>`). */
+const volumes = new Map<string, { item: KitImageView; pixels: Uint16Array; min: number; max: number }>();
 
-export function registerVolume(item: KitItemView, buffer: ArrayBuffer): void {
+export function registerVolume(key: string, item: KitImageView, buffer: ArrayBuffer): void {
   const pixels = new Uint16Array(buffer);
   let min = 65535;
   let max = 0;
   for (let i = 0; i < pixels.length; i++) { const v = pixels[i]; if (v < min) min = v; if (v > max) max = v; }
-  volumes.set(item.id, { item, pixels, min, max });
+  volumes.set(key, { item, pixels, min, max });
   // Keep only a few volumes in memory.
   while (volumes.size > 3) volumes.delete(volumes.keys().next().value!);
 }
 
-export function sliceImageId(itemId: string, slice: number): string {
-  return `veil:${itemId}:${slice}`;
+export function sliceImageId(key: string, slice: number): string {
+  return `veil:${key}:${slice}`;
 }
 
 function loadSlice(imageId: string): { promise: Promise<CornerstoneImage> } {
-  const [, itemId, sliceText] = imageId.split(':');
-  const v = volumes.get(itemId);
+  const [, key, sliceText] = imageId.split(':');
+  const v = volumes.get(key);
   if (!v) return { promise: Promise.reject(new Error(`image ${imageId} is not loaded`)) };
   const { item } = v;
   const slice = Number(sliceText);

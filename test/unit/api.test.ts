@@ -22,6 +22,7 @@ describe('API', () => {
       expect(JSON.stringify(kit)).not.toMatch(/m-alpha|m-beta|Alpha|Beta|\.npy/);
       expect(kit.progress).toEqual({ answered: 0, total: 6, next: 0 });
       const px = new Uint16Array(await api.itemPixels({ reader: 'R1', itemId: kit.items[0].id }));
+      await expect(api.itemPixels({ reader: "R1", itemId: kit.items[0].id, view: 1 })).rejects.toThrow(/has no view 1/);
       expect(px.length).toBe(2 * 8 * 8);
 
       const r = await api.submitAnswer({ reader: 'R1', itemId: kit.items[0].id, scores: { sharpness: 3, noise: 4 }, seconds: 2.5 });

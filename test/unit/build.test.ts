@@ -35,7 +35,7 @@ describe('veil build', () => {
       }
       for (const f of readdirSync(join(kitDir, 'images'))) expect(f).toMatch(/^[0-9a-z]{10}\.npy$/);
       const first = manifest.items[0];
-      const v = readNpy(readFileSync(join(kitDir, first.image)), first.image);
+      const v = readNpy(readFileSync(join(kitDir, first.views[0].image)), first.views[0].image);
       expect([v.slices, v.rows, v.columns]).toEqual([2, 8, 8]);
       expect(Math.max(...v.pixels)).toBeLessThanOrEqual(65535);
     }

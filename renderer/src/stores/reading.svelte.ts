@@ -45,12 +45,13 @@ class ReadingStore {
     }
   }
 
-  pixelsOf(itemId: string): Promise<ArrayBuffer> {
-    let p = this.pixels.get(itemId);
+  pixelsOf(itemId: string, view = 0): Promise<ArrayBuffer> {
+    const key = `${itemId}~${view}`;
+    let p = this.pixels.get(key);
     if (!p) {
-      p = api.itemPixels({ reader: this.kit!.reader, itemId });
-      p.catch(() => this.pixels.delete(itemId));
-      this.pixels.set(itemId, p);
+      p = api.itemPixels({ reader: this.kit!.reader, itemId, view });
+      p.catch(() => this.pixels.delete(key));
+      this.pixels.set(key, p);
     }
     return p;
   }
@@ -65,9 +66,10 @@ class ReadingStore {
     this.timer.start();
     // Prefetch the next unanswered item so it is on screen at once after submitting.
     const next = kit.items[index + 1];
-    if (next) void this.pixelsOf(next.id).catch(() => undefined);
+    if (next) next.views.forEach((_, v) => void this.pixelsOf(next.id, v).catch(() => undefined));
     // Keep memory flat on long kits.
-    for (const key of this.pixels.keys()) if (key !== kit.items[index].id && key !== next?.id) this.pixels.delete(key);
+    const keep = (key: string) => key.startsWith(`${kit.items[index].id}~`) || (!!next && key.startsWith(`${next.id}~`));
+    for (const key of this.pixels.keys()) if (!keep(key)) this.pixels.delete(key);
   }
 
   score(questionIndex: number, value: number): void {
