@@ -78,11 +78,13 @@ export interface VeilApi {
   itemPixels(req: { reader: string; itemId: string; view?: number }): Promise<ArrayBuffer>;
   /** Resolves only once the answer is durable on disk. */
   submitAnswer(req: SubmitRequest): Promise<{ progress: Progress }>;
+  /** Writes a results bundle of every answer so far into the kit's results/ folder and returns its path. */
+  exportResults(req: { reader: string }): Promise<{ file: string }>;
 }
 
 export type OperationName = keyof VeilApi;
 
-export const OPERATIONS: readonly OperationName[] = ['info', 'listReaders', 'openKit', 'itemPixels', 'submitAnswer'] as const;
+export const OPERATIONS: readonly OperationName[] = ['info', 'listReaders', 'openKit', 'itemPixels', 'submitAnswer', 'exportResults'] as const;
 
 /** An error meant for the user: bad input or a refused action, with a message naming what and where. */
 export class ApiError extends Error {

@@ -6,7 +6,10 @@
 import { join, resolve } from 'node:path';
 import { ApiError, OPERATIONS, type AppInfo, type KitView, type Progress, type ReaderEntry, type SubmitRequest, type VeilApi } from './api-contract.ts';
 import { findKits, isKitFolder, loadKitManifest, readViewPixels } from './blinding/kit-read.ts';
-import type { KitManifest } from './blinding/kit-format.ts';
+import { KIT_MANIFEST, type KitManifest } from './blinding/kit-format.ts';
+import { checkFileBytes, KitIntegrityError, verifyKitIntegrity, type KitIntegrity } from './blinding/kit-integrity.ts';
+import { writeResultsBundle } from './blinding/bundle-export.ts';
+import { readFileSync } from 'node:fs';
 import { ANSWERS_FILE, currentScores, openReaderAnswers, recordSubmission } from './store/reader-answers.ts';
 import type { OpenedDatabase } from './store/open.ts';
 import { RESEARCH_NOTICE, VEIL_VERSION } from './notice.ts';
@@ -14,7 +17,7 @@ import { RESEARCH_NOTICE, VEIL_VERSION } from './notice.ts';
 export { OPERATIONS };
 export type { VeilApi };
 
-interface OpenKit { dir: string; manifest: KitManifest; answers: OpenedDatabase }
+interface OpenKit { dir: string; manifest: KitManifest; integrity: KitIntegrity; answers: OpenedDatabase }
 
 export interface ApiHandle extends VeilApi {
   close(): void;
@@ -46,9 +49,17 @@ export function createApi(root: string): ApiHandle {
     if (cached) return cached;
     const kitDir = kitDirs.get(reader);
     if (!kitDir) throw new ApiError(`no kit for reader '${reader}' here; readers: ${[...kitDirs.keys()].join(', ')}`, 404);
+    let integrity: KitIntegrity;
+    try {
+      integrity = verifyKitIntegrity(kitDir);
+      checkFileBytes(integrity, kitDir, KIT_MANIFEST, readFileSync(join(kitDir, KIT_MANIFEST)));
+    } catch (e) {
+      if (e instanceof KitIntegrityError) throw new ApiError(`This kit cannot be opened: ${e.message}`, 409);
+      throw e;
+    }
     const manifest = loadKitManifest(kitDir);
     const answers = openReaderAnswers(join(kitDir, ANSWERS_FILE), manifest.kitId, manifest.reader);
-    const k = { dir: kitDir, manifest, answers };
+    const k = { dir: kitDir, manifest, integrity, answers };
     open.set(reader, k);
     return k;
   }
@@ -85,7 +96,13 @@ export function createApi(root: string): ApiHandle {
       if (!item) throw new ApiError(`kit of reader '${reader}' has no item '${itemId}'`, 404);
       const v = item.views[view];
       if (!v) throw new ApiError(`item '${itemId}' has no view ${view} (it has ${item.views.length})`, 404);
-      const px = readViewPixels(k.dir, v);
+      let px: Uint16Array;
+      try {
+        px = readViewPixels(k.dir, v, k.integrity);
+      } catch (e) {
+        if (e instanceof KitIntegrityError) throw new ApiError(e.message, 409);
+        throw e;
+      }
       return px.buffer.slice(px.byteOffset, px.byteOffset + px.byteLength) as ArrayBuffer;
     },
     async submitAnswer(req: SubmitRequest) {
@@ -105,6 +122,10 @@ export function createApi(root: string): ApiHandle {
       if (seconds != null && !(seconds >= 0)) throw new ApiError(`seconds must be a non-negative number, got ${JSON.stringify(req.seconds)}`);
       recordSubmission(k.answers.db, { itemId: req.itemId, scores, seconds });
       return { progress: progressOf(m, currentScores(k.answers.db)) };
+    },
+    async exportResults({ reader }) {
+      const k = kitOf(reader);
+      return { file: writeResultsBundle(k.dir, k.answers.db, k.manifest, k.integrity) };
     },
     close() {
       for (const k of open.values()) k.answers.close();

@@ -12,6 +12,7 @@ import { resolveCases } from './study/cases.ts';
 import { loadVolume } from './images/load.ts';
 import { buildStudy, BuildError, type BuildProgress, type BuildSummary } from './blinding/build.ts';
 import { writeDemo } from './demo/demo.ts';
+import { collectBundles } from './blinding/collect.ts';
 import { openWorkspace, unblindedRatings, workspacePath } from './store/workspace.ts';
 import { parseTidyCsv, writeTidyCsv } from './report/tidy-csv.ts';
 import { agreementByGroup, formatAgreementTable } from './stats/agreement.ts';
@@ -102,9 +103,19 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
       io.out(o.json ? JSON.stringify(summary, null, 2) + '\n' : describeBuild(summary));
     });
 
-  program.command('collect').argument('<dir>').argument('<results...>')
-    .description('verify and import results bundles (not built yet)')
-    .action(() => notYet('collect'));
+  program.command('collect').argument('<dir>', 'study folder').argument('<results...>', 'results bundles (*.veil-results.json)')
+    .description('verify results bundles and unblind their answers into the workspace (one transaction)')
+    .option('--json', 'machine-readable output')
+    .action(async (dir: string, files: string[], o: { json?: boolean }) => {
+      const results = collectBundles(dir, files);
+      if (o.json) io.out(JSON.stringify({ results }, null, 2) + '\n');
+      else {
+        for (const r of results) {
+          io.out(`${r.status.padEnd(9)} ${r.file}${r.reader ? ` (${r.reader})` : ''}${r.added ? `: ${r.added} answers added` : ''}${r.reason ? `: ${r.reason}` : ''}\n`);
+        }
+      }
+      if (results.some((r) => r.status === 'refused' || r.status === 'conflict')) process.exitCode = 1;
+    });
 
   program.command('report').argument('<dir>', 'study folder')
     .description('statistics, figures and tables; writes REPORT/ratings.csv (tidy ratings)')

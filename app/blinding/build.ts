@@ -12,8 +12,10 @@ import { writeNpy } from '../images/npy.ts';
 import type { Volume } from '../images/volume.ts';
 import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeSeries, writeStudy } from '../store/workspace.ts';
 import { audit } from '../store/open.ts';
-import { readingSchedule, type ScheduledItem } from './design.ts';
-import { drawOpaqueIds, GENERATOR_NAME } from './streams.ts';
+import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledItem } from './design.ts';
+import { newSigningKey, writeKitIntegrity } from './kit-integrity.ts';
+import { randomBytes } from 'node:crypto';
+import { GENERATOR_NAME } from './streams.ts';
 import { toDisplayUint16 } from './display-scale.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
@@ -37,6 +39,7 @@ export interface BuildSummary {
   readers: number;
   sessions: number;
   itemsPerReader: number;
+  design: DesignSummary;
   workspace: string;
   kits: { reader: string; kitId: string; path: string; items: number; perSession: number[] }[];
 }
@@ -54,8 +57,11 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
   }
   const caseIds = resolution.cases.map((c) => c.caseId);
   const methodIds = template.methods.map((m) => m.id);
-  const schedule = readingSchedule(template.seed, template.readers, caseIds, methodIds, template.design.sessions);
-  const kitIds = drawOpaqueIds(template.seed, 'kit-ids', template.readers.length, 12);
+  const presentation = template.design.presentation;
+  const schedule = readingSchedule(template.seed, template.readers, caseIds, methodIds, template.design.sessions, presentation);
+  const design = summarizeDesign(schedule, template.seed, GENERATOR_NAME, template.design.sessions, presentation);
+  // Kit ids are random, not seeded: two builds of one template must not accept each other's bundles.
+  const kitIds = template.readers.map(() => `kit-${randomBytes(8).toString('hex')}`);
 
   mkdirSync(out, { recursive: true });
   const staging = join(out, `.veil-staging-${process.pid}`);
@@ -63,10 +69,14 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
   mkdirSync(join(staging, KITS_DIR), { recursive: true });
   const ws = openWorkspace(join(staging, WORKSPACE_FILE));
   try {
-    const itemsByPair = new Map<string, ScheduledItem[]>();
+    // Which items show a (case, method) volume, and in which view (0: single or left, 1: right).
+    const itemsByPair = new Map<string, { it: ScheduledItem; view: number }[]>();
     for (const it of schedule) {
-      const k = `${it.caseId}\u0000${it.methodId}`;
-      itemsByPair.set(k, [...(itemsByPair.get(k) ?? []), it]);
+      [it.methodId, it.rightMethodId].forEach((m, view) => {
+        if (!m) return;
+        const k = `${it.caseId}\u0000${m}`;
+        itemsByPair.set(k, [...(itemsByPair.get(k) ?? []), { it, view }]);
+      });
     }
     const kitItems = new Map<string, Map<string, KitItem>>(template.readers.map((r) => [r, new Map()]));
     for (const r of template.readers) mkdirSync(join(staging, KITS_DIR, r, 'images'), { recursive: true });
@@ -75,7 +85,13 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
     let done = 0;
 
     const templateText = readFileSync(template.file, 'utf8');
-    ws.db.transaction(() => writeStudy(ws.db, template, templateText, GENERATOR_NAME, caseIds))();
+    const signingKey = newSigningKey();
+    ws.db.transaction(() => {
+      writeStudy(ws.db, template, templateText, GENERATOR_NAME, caseIds);
+      ws.db.prepare('UPDATE study SET design = ? WHERE id = 1').run(JSON.stringify(design));
+      ws.db.prepare('INSERT INTO signing_key (id, private_pem, public_der, created_at) VALUES (1, ?, ?, ?)')
+        .run(signingKey.privatePem, signingKey.publicDer, new Date().toISOString());
+    })();
 
     for (const c of resolution.cases) {
       let grid: Volume | null = null;
@@ -95,13 +111,12 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
         seriesIds.set(`${c.caseId}\u0000${methodId}`, writeSeries(ws.db, c.caseId, methodId, v));
         const display = toDisplayUint16(v.pixels);
         const bytes = writeNpy(display.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
-        for (const it of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
-          const image = `images/${it.itemId}.npy`;
+        for (const { it, view } of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
+          const image = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
           writeFileSync(join(staging, KITS_DIR, it.reader, image), bytes);
-          kitItems.get(it.reader)!.set(it.itemId, {
-            id: it.itemId, session: it.session,
-            views: [{ image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: display.window }],
-          });
+          const entry = kitItems.get(it.reader)!.get(it.itemId) ?? { id: it.itemId, session: it.session, views: [] };
+          entry.views[view] = { image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: display.window };
+          kitItems.get(it.reader)!.set(it.itemId, entry);
         }
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: ${methodId}` });
       }
@@ -124,7 +139,9 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
         };
         writeFileSync(join(staging, KITS_DIR, reader, KIT_MANIFEST), JSON.stringify(manifest, null, 1));
         const finalPath = join(out, KITS_DIR, reader);
-        writeKit(ws.db, reader, kitIds[r], finalPath);
+        const bundleKey = randomBytes(32).toString('base64');
+        writeKitIntegrity(join(staging, KITS_DIR, reader), kitIds[r], bundleKey, signingKey);
+        writeKit(ws.db, reader, kitIds[r], finalPath, bundleKey, signingKey.publicDer);
         writeKitItems(ws.db, mine, (caseId, methodId) => seriesIds.get(`${caseId}\u0000${methodId}`)!);
         const perSession = Array.from({ length: template.design.sessions }, (_, i) => mine.filter((m) => m.session === i + 1).length);
         kits.push({ reader, kitId: kitIds[r], path: finalPath, items: mine.length, perSession });
@@ -138,7 +155,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
     return {
       title: template.title, seed: template.seed, generator: GENERATOR_NAME, cases: caseIds.length,
       methods: methodIds.length, readers: template.readers.length, sessions: template.design.sessions,
-      itemsPerReader: caseIds.length * methodIds.length, workspace: join(out, WORKSPACE_FILE), kits,
+      itemsPerReader: schedule.length / template.readers.length, design, workspace: join(out, WORKSPACE_FILE), kits,
     };
   } catch (e) {
     ws.close();

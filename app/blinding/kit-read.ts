@@ -4,6 +4,7 @@
 import { existsSync, readFileSync, readdirSync } from 'node:fs';
 import { join, resolve, sep } from 'node:path';
 import { readNpy } from '../images/npy.ts';
+import { checkFileBytes, type KitIntegrity } from './kit-integrity.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitImage, type KitManifest } from './kit-format.ts';
 import { KITS_DIR } from './build.ts';
 
@@ -40,11 +41,13 @@ export function findKits(studyDir: string): Map<string, string> {
 }
 
 /** The display pixels of one view of an item as little-endian uint16, slice-major. */
-export function readViewPixels(kitDir: string, view: KitImage): Uint16Array {
+export function readViewPixels(kitDir: string, view: KitImage, integrity?: KitIntegrity): Uint16Array {
   const root = resolve(kitDir);
   const file = resolve(root, view.image);
   if (!file.startsWith(root + sep)) throw new Error(`kit image ${view.image}: path leaves the kit folder`);
-  const v = readNpy(readFileSync(file), file);
+  const bytes = readFileSync(file);
+  if (integrity) checkFileBytes(integrity, kitDir, view.image, bytes);
+  const v = readNpy(bytes, file);
   if (v.columns !== view.columns || v.rows !== view.rows || v.slices !== view.slices) {
     throw new Error(`${file}: image is ${v.slices}x${v.rows}x${v.columns}, the kit manifest says ${view.slices}x${view.rows}x${view.columns}`);
   }

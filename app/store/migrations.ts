@@ -102,6 +102,36 @@ CREATE TABLE audit (
   },
 ];
 
+workspaceMigrations.push({
+  version: 2,
+  description: 'kit signing and bundle keys, side-by-side pairs, design summary, collected bundles',
+  sql: `
+CREATE TABLE signing_key (
+  id INTEGER PRIMARY KEY CHECK (id = 1),
+  private_pem TEXT NOT NULL,
+  public_der TEXT NOT NULL,
+  created_at TEXT NOT NULL
+);
+ALTER TABLE kit ADD COLUMN bundle_key TEXT;
+ALTER TABLE kit ADD COLUMN public_key TEXT;
+ALTER TABLE kit_item ADD COLUMN right_method_id TEXT REFERENCES method(id);
+ALTER TABLE kit_item ADD COLUMN right_series_id INTEGER REFERENCES series(id);
+ALTER TABLE study ADD COLUMN design TEXT;
+-- Every results bundle taken in, verbatim, so a collect can always be re-examined.
+CREATE TABLE bundle (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  reader_code TEXT NOT NULL REFERENCES reader(code),
+  kit_id TEXT NOT NULL,
+  sha256 TEXT NOT NULL UNIQUE,
+  chains TEXT NOT NULL,
+  exported_at TEXT NOT NULL,
+  collected_at TEXT NOT NULL,
+  file TEXT NOT NULL,
+  content TEXT NOT NULL
+);
+`,
+});
+
 export const readerMigrations: Migration[] = [
   {
     version: 1,

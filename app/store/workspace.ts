@@ -40,13 +40,18 @@ export function writeSeries(db: Database.Database, caseId: string, methodId: str
   return Number(res.lastInsertRowid);
 }
 
-export function writeKit(db: Database.Database, reader: string, kitId: string, path: string): void {
-  db.prepare('INSERT INTO kit (reader_code, kit_id, path, created_at) VALUES (?, ?, ?, ?)').run(reader, kitId, path, new Date().toISOString());
+export function writeKit(db: Database.Database, reader: string, kitId: string, path: string, bundleKey: string, publicKey: string): void {
+  db.prepare('INSERT INTO kit (reader_code, kit_id, path, created_at, bundle_key, public_key) VALUES (?, ?, ?, ?, ?, ?)')
+    .run(reader, kitId, path, new Date().toISOString(), bundleKey, publicKey);
 }
 
 export function writeKitItems(db: Database.Database, items: ScheduledItem[], seriesOf: (caseId: string, methodId: string) => number): void {
-  const s = db.prepare('INSERT INTO kit_item (item_id, reader_code, position, session, case_id, method_id, series_id) VALUES (?, ?, ?, ?, ?, ?, ?)');
-  for (const it of items) s.run(it.itemId, it.reader, it.position, it.session, it.caseId, it.methodId, seriesOf(it.caseId, it.methodId));
+  const s = db.prepare(`INSERT INTO kit_item (item_id, reader_code, position, session, case_id, method_id, series_id, right_method_id, right_series_id)
+    VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`);
+  for (const it of items) {
+    s.run(it.itemId, it.reader, it.position, it.session, it.caseId, it.methodId, seriesOf(it.caseId, it.methodId),
+      it.rightMethodId ?? null, it.rightMethodId ? seriesOf(it.caseId, it.rightMethodId) : null);
+  }
 }
 
 export interface WorkspaceAnswer {

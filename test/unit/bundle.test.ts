@@ -1,0 +1,153 @@
+/**
+ * Kits and results bundles: integrity of kits, tamper detection of bundles, idempotent collect,
+ * conflicts, and unblinding into the workspace.
+ */
+import Database from 'better-sqlite3';
+import { appendFileSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { createApi } from '../../app/api.ts';
+import { buildStudy } from '../../app/blinding/build.ts';
+import { collectBundles } from '../../app/blinding/collect.ts';
+import { verifyKitIntegrity } from '../../app/blinding/kit-integrity.ts';
+import { loadTemplate } from '../../app/study/parse-template.ts';
+import { openWorkspace, unblindedRatings } from '../../app/store/workspace.ts';
+import { writeTinyStudy } from './helpers.ts';
+
+async function built(readers = ['R1', 'R2']) {
+  const { dir, template } = writeTinyStudy({ readers });
+  const out = join(dir, 'study');
+  await buildStudy(loadTemplate(template), out);
+  return out;
+}
+
+async function answerAndExport(out: string, reader: string, n: number, score = 3): Promise<string> {
+  const api = createApi(out);
+  try {
+    const kit = await api.openKit({ reader });
+    for (const it of kit.items.slice(0, n)) await api.submitAnswer({ reader, itemId: it.id, scores: { sharpness: score, noise: 2 }, seconds: 3 });
+    return (await api.exportResults({ reader })).file;
+  } finally {
+    api.close();
+  }
+}
+
+describe('kit integrity', () => {
+  it('accepts a fresh kit and names the file when one is missing, changed or added', async () => {
+    const out = await built();
+    const kit = join(out, 'kits', 'R1');
+    expect(verifyKitIntegrity(kit, { hashAll: true }).files.length).toBeGreaterThan(6);
+    const manifest = JSON.parse(readFileSync(join(kit, 'kit.json'), 'utf8'));
+    const img = join(kit, manifest.items[0].views[0].image);
+    const bytes = readFileSync(img);
+    bytes[bytes.length - 1] ^= 0xff;
+    writeFileSync(img, bytes);
+    expect(() => verifyKitIntegrity(kit, { hashAll: true })).toThrow(new RegExp(`${manifest.items[0].views[0].image}.*changed`));
+    // The reading room refuses the changed image when it is read, naming it.
+    const api = createApi(out);
+    try {
+      const k = await api.openKit({ reader: 'R1' });
+      await expect(api.itemPixels({ reader: 'R1', itemId: k.items[0].id })).rejects.toThrow(/has been changed/);
+    } finally { api.close(); }
+    rmSync(img);
+    expect(() => verifyKitIntegrity(kit)).toThrow(/is missing from the kit/);
+    writeFileSync(img, bytes);
+    writeFileSync(join(kit, 'images', 'extra.npy'), 'x');
+    expect(() => verifyKitIntegrity(kit)).toThrow(/extra\.npy does not belong to the kit/);
+  });
+
+  it('refuses to open a kit whose manifest was edited', async () => {
+    const out = await built();
+    const file = join(out, 'kits', 'R2', 'kit.json');
+    writeFileSync(file, readFileSync(file, 'utf8').replace('"sessions": 1', '"sessions": 2 '));
+    const api = createApi(out);
+    try {
+      await expect(api.openKit({ reader: 'R2' })).rejects.toThrow(/kit\.json has been changed/);
+    } finally { api.close(); }
+  });
+});
+
+describe('results bundles and collect', () => {
+  it('unblinds a bundle into the workspace; the same bundle twice changes nothing', async () => {
+    const out = await built();
+    const bundle = await answerAndExport(out, 'R1', 2, 4);
+    const first = collectBundles(out, [bundle]);
+    expect(first).toMatchObject([{ status: 'imported', reader: 'R1', added: 4 }]);
+    const again = collectBundles(out, [bundle]);
+    expect(again).toMatchObject([{ status: 'unchanged', added: 0 }]);
+    const ws = openWorkspace(join(out, 'workspace.sqlite'), { readonly: true });
+    const rows = unblindedRatings(ws.db);
+    ws.close();
+    expect(rows).toHaveLength(4);
+    expect(rows.every((r) => r.reader === 'R1' && r.source === 'collected' && ['m-alpha', 'm-beta'].includes(r.method))).toBe(true);
+    expect(rows.filter((r) => r.question === 'sharpness').every((r) => r.score === 4)).toBe(true);
+  });
+
+  it('takes a later export of the same kit as an update and adds only what is new', async () => {
+    const out = await built();
+    const early = await answerAndExport(out, 'R1', 1);
+    const later = await answerAndExport(out, 'R1', 3);
+    expect(collectBundles(out, [early])[0]).toMatchObject({ status: 'imported', added: 2 });
+    // The later export re-answered the first item (a second revision) and answered two more.
+    expect(collectBundles(out, [later])[0]).toMatchObject({ status: 'updated', added: 6 });
+    const db = new Database(join(out, 'workspace.sqlite'), { readonly: true });
+    expect((db.prepare('SELECT MAX(revision) AS r FROM answer').get() as { r: number }).r).toBe(2);
+    db.close();
+  });
+
+  it('refuses edited, truncated and foreign bundles with the reason, and imports nothing from them', async () => {
+    const out = await built();
+    const bundle = await answerAndExport(out, 'R1', 2);
+    const text = readFileSync(bundle, 'utf8');
+
+    const edited = bundle.replace('.veil-results.json', '-edited.veil-results.json');
+    const b = JSON.parse(text);
+    b.tables.answer[0].score = b.tables.answer[0].score === 1 ? 2 : 1;
+    writeFileSync(edited, JSON.stringify(b));
+    const truncated = bundle.replace('.veil-results.json', '-cut.veil-results.json');
+    writeFileSync(truncated, text.slice(0, Math.floor(text.length / 2)));
+    const dropped = bundle.replace('.veil-results.json', '-dropped.veil-results.json');
+    const d = JSON.parse(text);
+    d.tables.answer.pop();
+    writeFileSync(dropped, JSON.stringify(d));
+
+    const other = await built();
+    const foreign = await answerAndExport(other, 'R1', 1);
+
+    const res = collectBundles(out, [edited, truncated, dropped, foreign]);
+    expect(res.map((r) => r.status)).toEqual(['refused', 'refused', 'refused', 'refused']);
+    expect(res[0].reason).toMatch(/edited, truncated, or made for another kit/);
+    expect(res[1].reason).toMatch(/not JSON.*truncated/);
+    expect(res[2].reason).toMatch(/edited, truncated/);
+    expect(res[3].reason).toMatch(/does not belong to this study/);
+    const db = new Database(join(out, 'workspace.sqlite'), { readonly: true });
+    expect((db.prepare('SELECT COUNT(*) AS n FROM answer').get() as { n: number }).n).toBe(0);
+    db.close();
+  });
+
+  it('reports a conflict when one reader sends two bundles that disagree', async () => {
+    const out = await built();
+    const a = await answerAndExport(out, 'R2', 1, 2);
+    // A second copy of the kit, answered differently, then exported: the chains diverge.
+    const copy = readFileSync(a, 'utf8');
+    rmSync(join(out, 'kits', 'R2', 'answers.sqlite'));
+    for (const s of ['-wal', '-shm']) rmSync(join(out, 'kits', 'R2', `answers.sqlite${s}`), { force: true });
+    const b = await answerAndExport(out, 'R2', 1, 5);
+    writeFileSync(a, copy);
+    expect(collectBundles(out, [a])[0].status).toBe('imported');
+    const second = collectBundles(out, [b])[0];
+    expect(second.status).toBe('conflict');
+    expect(second.reason).toMatch(/R2 already sent a different bundle/);
+  });
+
+  it('collects nothing when interrupted: one transaction for all bundles', async () => {
+    const out = await built();
+    const ok = await answerAndExport(out, 'R1', 2);
+    const ws = openWorkspace(join(out, 'workspace.sqlite'));
+    // A writer holding the workspace makes the collect fail before anything is written.
+    expect(() => collectBundles(out, [ok])).toThrow(/already open for writing/);
+    ws.close();
+    appendFileSync(ok, '');
+    expect(collectBundles(out, [ok])[0].status).toBe('imported');
+  });
+});
