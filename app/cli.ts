@@ -50,6 +50,10 @@ function describeBuild(s: BuildSummary): string {
   const lines = [
     `Built "${s.title}": ${s.cases} cases x ${s.methods} methods, ${s.readers} readers, ${s.itemsPerReader} items per reader in ${s.sessions} session(s).`,
     `Seed ${s.seed}, generator ${s.generator}.`,
+    `Design (${s.design.presentation}): methods per session ${Object.entries(s.design.methodsBySession).map(([m, n]) => `${m} ${n.join('/')}`).join(', ')}; ` +
+      `mean place in session ${Object.entries(s.design.meanPosition).map(([m, p]) => `${m} ${p.toFixed(2)}`).join(', ')}` +
+      (s.design.leftCount ? `; on the left ${Object.entries(s.design.leftCount).map(([m, n]) => `${m} ${n}`).join(', ')}` : '') +
+      (Number.isFinite(s.design.minSameCaseGap) ? `; items of one case at least ${s.design.minSameCaseGap} apart` : '; each case at most once a session') + '.',
     `Workspace (coordinator only, holds the key): ${s.workspace}`,
     ...s.kits.map((k) => `Kit for ${k.reader}: ${k.path} (${k.items} items; per session ${k.perSession.join(' / ')})`),
   ];

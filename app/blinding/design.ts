@@ -11,7 +11,8 @@
  *    rotation, so each method's session is counterbalanced across cases and readers. When S >= U
  *    the units of one case land in different sessions, so a case appears at most once a session.
  * 3. Within a session the items of each case are dealt into rounds (the k-th item of every case in
- *    round k), each round shuffled (stream "design-order:<reader>"); a round boundary that would
+ *    round k, each case's items rotated by the case's place so no method always comes first), each
+ *    round shuffled (stream "design-order:<reader>"); a round boundary that would
  *    put two items of one case next to each other is repaired by a swap. Items of a case are thus
  *    about one round (the number of cases) apart and never adjacent when the session holds more
  *    than one case.
@@ -54,7 +55,11 @@ function orderSession(units: Unit[], rng: ReturnType<typeof streamFor>): Unit[] 
   const byCase = new Map<string, Unit[]>();
   for (const u of units) byCase.set(u.caseId, [...(byCase.get(u.caseId) ?? []), u]);
   const rounds: Unit[][] = [];
-  for (const list of byCase.values()) list.forEach((u, k) => { (rounds[k] ??= []).push(u); });
+  // Rotate each case's units by the case's place, so no method is always dealt into the first round.
+  [...byCase.values()].forEach((list, c) => {
+    const shift = c % list.length;
+    [...list.slice(shift), ...list.slice(0, shift)].forEach((u, k) => { (rounds[k] ??= []).push(u); });
+  });
   const out: Unit[] = [];
   for (const round of rounds) {
     shuffleInPlace(round, rng);

@@ -40,6 +40,12 @@ describe('reading schedule', () => {
     for (const m of methods) expect(Math.abs(summary.meanPosition[m] - 0.5)).toBeLessThan(0.2);
   });
 
+  it('does not put any method systematically early or late in a session', () => {
+    const many = ['c1', 'c2', 'c3', 'c4', 'c5', 'c6', 'c7', 'c8', 'c9', 'c10', 'c11', 'c12'];
+    const summary = summarizeDesign(readingSchedule(5, ['R1', 'R2', 'R3', 'R4'], many, methods, 1), 5, 'MT19937', 1, 'single');
+    for (const m of methods) expect(Math.abs(summary.meanPosition[m] - 0.5)).toBeLessThan(0.08);
+  });
+
   it('never puts two items of one case next to each other when a session must hold several', () => {
     for (const seed of [1, 2, 3, 4, 5, 6, 7, 8]) {
       const s = readingSchedule(seed, ['R1', 'R2'], cases, ['m-a', 'm-b', 'm-c', 'm-d'], 1);
