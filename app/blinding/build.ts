@@ -13,7 +13,7 @@ import type { Volume } from '../images/volume.ts';
 import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeSeries, writeStudy } from '../store/workspace.ts';
 import { audit } from '../store/open.ts';
 import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledItem } from './design.ts';
-import { newSigningKey, writeKitIntegrity } from './kit-integrity.ts';
+import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from './kit-integrity.ts';
 import { randomBytes } from 'node:crypto';
 import { GENERATOR_NAME } from './streams.ts';
 import { toDisplayUint16 } from './display-scale.ts';
@@ -81,6 +81,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
     const kitItems = new Map<string, Map<string, KitItem>>(template.readers.map((r) => [r, new Map()]));
     for (const r of template.readers) mkdirSync(join(staging, KITS_DIR, r, 'images'), { recursive: true });
     const seriesIds = new Map<string, number>();
+    const imageHashes = new Map<string, Map<string, KitFileEntry>>(template.readers.map((r) => [r, new Map()]));
     const total = resolution.cases.length * (methodIds.length + (template.reference ? 1 : 0));
     let done = 0;
 
@@ -111,9 +112,11 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
         seriesIds.set(`${c.caseId}\u0000${methodId}`, writeSeries(ws.db, c.caseId, methodId, v));
         const display = toDisplayUint16(v.pixels);
         const bytes = writeNpy(display.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
+        const sha256 = sha256Hex(bytes);
         for (const { it, view } of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
           const image = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
           writeFileSync(join(staging, KITS_DIR, it.reader, image), bytes);
+          imageHashes.get(it.reader)!.set(image, { path: image, bytes: bytes.length, sha256 });
           const entry = kitItems.get(it.reader)!.get(it.itemId) ?? { id: it.itemId, session: it.session, views: [] };
           entry.views[view] = { image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: display.window };
           kitItems.get(it.reader)!.set(it.itemId, entry);
@@ -131,16 +134,20 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
           format: KIT_FORMAT, version: KIT_VERSION, kitId: kitIds[r], reader, title: template.title, createdAt,
           sessions: template.design.sessions, washoutDays: template.design.washout_days,
           presentation: template.design.presentation,
+          revisits: template.design.revisits ?? false,
+          // Window presets in display units; filled from the template's display section once it has them.
+          presets: [],
           questions: template.questions.map((q) => ({
             id: q.id, text: q.text, points: q.scale.points, low: q.scale.low, high: q.scale.high,
             labels: Object.fromEntries(Object.entries(q.labels).map(([k, v]) => [String(k), v])),
+            type: q.type ?? 'likert', required: q.required ?? true, comment: q.comment ?? false,
           })),
           items: mine.map((s) => kitItems.get(reader)!.get(s.itemId)!),
         };
         writeFileSync(join(staging, KITS_DIR, reader, KIT_MANIFEST), JSON.stringify(manifest, null, 1));
         const finalPath = join(out, KITS_DIR, reader);
         const bundleKey = randomBytes(32).toString('base64');
-        writeKitIntegrity(join(staging, KITS_DIR, reader), kitIds[r], bundleKey, signingKey);
+        writeKitIntegrity(join(staging, KITS_DIR, reader), kitIds[r], bundleKey, signingKey, imageHashes.get(reader));
         writeKit(ws.db, reader, kitIds[r], finalPath, bundleKey, signingKey.publicDer);
         writeKitItems(ws.db, mine, (caseId, methodId) => seriesIds.get(`${caseId}\u0000${methodId}`)!);
         const perSession = Array.from({ length: template.design.sessions }, (_, i) => mine.filter((m) => m.session === i + 1).length);

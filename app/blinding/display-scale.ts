@@ -8,10 +8,12 @@ export const DISPLAY_MAX = 4000;
 
 export function percentile(values: Float32Array, p: number, maxSamples = 200_000): number {
   const step = Math.max(1, Math.floor(values.length / maxSamples));
-  const sample: number[] = [];
-  for (let i = 0; i < values.length; i += step) if (Number.isFinite(values[i])) sample.push(values[i]);
-  if (sample.length === 0) return 0;
-  sample.sort((a, b) => a - b);
+  const buffer = new Float32Array(Math.ceil(values.length / step));
+  let n = 0;
+  for (let i = 0; i < values.length; i += step) if (Number.isFinite(values[i])) buffer[n++] = values[i];
+  if (n === 0) return 0;
+  // A typed array sorts numerically in native code, far faster than an array with a comparator.
+  const sample = buffer.subarray(0, n).sort();
   const pos = (p / 100) * (sample.length - 1);
   const lo = Math.floor(pos);
   const hi = Math.min(sample.length - 1, lo + 1);

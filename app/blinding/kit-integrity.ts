@@ -62,8 +62,14 @@ function signedPart(i: Omit<KitIntegrity, 'signature'>): string {
   return canonicalJson(i);
 }
 
-export function writeKitIntegrity(kitDir: string, kitId: string, bundleKey: string, key: SigningKey): KitIntegrity {
+/**
+ * `known` holds hashes the caller computed while writing (the same image bytes go into several
+ * kits, so hashing them once saves reading every kit back); other files are read and hashed here.
+ */
+export function writeKitIntegrity(kitDir: string, kitId: string, bundleKey: string, key: SigningKey, known?: Map<string, KitFileEntry>): KitIntegrity {
   const files = listFiles(kitDir).map((path) => {
+    const k = known?.get(path);
+    if (k && statSync(join(kitDir, path)).size === k.bytes) return k;
     const bytes = readFileSync(join(kitDir, path));
     return { path, bytes: bytes.length, sha256: sha256Hex(bytes) };
   });
