@@ -34,6 +34,8 @@ export const SUPPORTED_DTYPES = ['f4', 'f8', 'i2', 'u2', 'i4', 'u1', 'i1', 'c8',
 const SUPPORTED_TEXT = `${SUPPORTED_DTYPES.join(', ')} (with byte order '<' or '>'; '|' for one-byte types)`;
 
 interface DType {
+  /** Kind and size, e.g. 'f4', 'i2', 'c8'. */
+  code: string;
   /** Bytes per element (both parts for complex). */
   size: number;
   little: boolean;
@@ -53,6 +55,21 @@ const READERS: Record<(typeof SUPPORTED_DTYPES)[number], DType['read']> = {
   c16: (v, o, le) => Math.sqrt(v.getFloat64(o, le) ** 2 + v.getFloat64(o + 8, le) ** 2),
 };
 
+const HOST_LITTLE = new Uint8Array(new Uint16Array([1]).buffer)[0] === 1;
+const NATIVE: Partial<Record<string, new (buffer: ArrayBuffer, offset: number, length: number) => ArrayLike<number>>> = {
+  f4: Float32Array, f8: Float64Array, i2: Int16Array, u2: Uint16Array, i4: Int32Array, u1: Uint8Array, i1: Int8Array,
+};
+
+/** A typed-array view (or aligned copy) of real data stored in the host's byte order, else null. */
+function nativeArray(dtype: DType, bytes: Uint8Array, dataStart: number, count: number): ArrayLike<number> | null {
+  const Ctor = NATIVE[dtype.code];
+  if (!Ctor || (dtype.size > 1 && dtype.little !== HOST_LITTLE)) return null;
+  const offset = bytes.byteOffset + dataStart;
+  if (offset % dtype.size === 0) return new Ctor(bytes.buffer as ArrayBuffer, offset, count);
+  const copy = bytes.slice(dataStart, dataStart + count * dtype.size);
+  return new Ctor(copy.buffer, 0, count);
+}
+
 function parseDescr(descr: string, path: string): DType {
   const m = /^([<>|])([fiuc])([0-9]+)$/.exec(descr);
   const code = m ? `${m[2]}${m[3]}` : '';
@@ -62,7 +79,7 @@ function parseDescr(descr: string, path: string): DType {
   if (!m || !known || (m[1] === '|' && size !== 1)) {
     throw new NpyError(path, `unsupported dtype '${descr}'; supported: ${SUPPORTED_TEXT}`);
   }
-  return { size, little: m[1] !== '>', read: READERS[code as keyof typeof READERS] };
+  return { code, size, little: m[1] !== '>', read: READERS[code as keyof typeof READERS] };
 }
 
 // ---- the header: a small parser for the Python literal subset NumPy writes ------------------
@@ -234,7 +251,11 @@ export function readNpy(bytes: Uint8Array, path: string): Volume {
   const view = new DataView(bytes.buffer, bytes.byteOffset + dataStart, needed);
   const { read, size, little } = dtype;
   const pixels = new Float32Array(count);
-  if (!fortran) {
+  const native = !fortran && nativeArray(dtype, bytes, dataStart, count);
+  if (native) {
+    // Fast path: the data is already in this machine's byte order; a typed-array copy converts natively.
+    pixels.set(native);
+  } else if (!fortran) {
     for (let i = 0; i < count; i++) pixels[i] = read(view, i * size, little);
   } else {
     // Fortran order: the first axis varies fastest, source index = s + slices * (r + rows * c).
@@ -309,7 +330,11 @@ export function writeNpy(data: NpyWritable, shape: number[]): Uint8Array {
   const view = new DataView(out.buffer);
   view.setUint16(8, header.length, true);
   for (let i = 0; i < header.length; i++) out[preamble + i] = header.charCodeAt(i);
-  const dataView = new DataView(out.buffer, preamble + header.length);
-  for (let i = 0; i < count; i++) write(dataView, i * size, data[i]);
+  if (HOST_LITTLE) {
+    out.set(new Uint8Array(data.buffer, data.byteOffset, data.byteLength), preamble + header.length);
+  } else {
+    const dataView = new DataView(out.buffer, preamble + header.length);
+    for (let i = 0; i < count; i++) write(dataView, i * size, data[i]);
+  }
   return out;
 }
