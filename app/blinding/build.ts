@@ -4,6 +4,7 @@
  * a failed build leaves the output folder as it was.
  */
 import { existsSync, mkdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { writeFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import type { StudyTemplate } from '../study/template.ts';
 import { resolveCases } from '../study/cases.ts';
@@ -68,6 +69,8 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
   rmSync(staging, { recursive: true, force: true });
   mkdirSync(join(staging, KITS_DIR), { recursive: true });
   const ws = openWorkspace(join(staging, WORKSPACE_FILE));
+  // Image writes overlap with reading and converting the next volume; a few volumes' worth at most are in flight.
+  let pendingWrites: Promise<void>[] = [];
   try {
     // Which items show a (case, method) volume, and in which view (0: single or left, 1: right).
     const itemsByPair = new Map<string, { it: ScheduledItem; view: number }[]>();
@@ -82,6 +85,12 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
     for (const r of template.readers) mkdirSync(join(staging, KITS_DIR, r, 'images'), { recursive: true });
     const seriesIds = new Map<string, number>();
     const imageHashes = new Map<string, Map<string, KitFileEntry>>(template.readers.map((r) => [r, new Map()]));
+    const drainWrites = async (max: number) => {
+      if (pendingWrites.length <= max) return;
+      const waiting = pendingWrites;
+      pendingWrites = [];
+      await Promise.all(waiting);
+    };
     const total = resolution.cases.length * (methodIds.length + (template.reference ? 1 : 0));
     let done = 0;
 
@@ -103,6 +112,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: reference` });
       }
       for (const methodId of methodIds) {
+        await drainWrites(4 * template.readers.length);
         const v = await loadVolume(c.methods[methodId]);
         if (grid && !sameGrid(grid, v)) {
           throw new BuildError([`case ${c.caseId}: ${methodId} (${v.provenance.path}) is ${v.slices}x${v.rows}x${v.columns} ` +
@@ -115,7 +125,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
         const sha256 = sha256Hex(bytes);
         for (const { it, view } of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
           const image = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
-          writeFileSync(join(staging, KITS_DIR, it.reader, image), bytes);
+          pendingWrites.push(writeFile(join(staging, KITS_DIR, it.reader, image), bytes));
           imageHashes.get(it.reader)!.set(image, { path: image, bytes: bytes.length, sha256 });
           const entry = kitItems.get(it.reader)!.get(it.itemId) ?? { id: it.itemId, session: it.session, views: [] };
           entry.views[view] = { image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: display.window };
@@ -125,6 +135,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
       }
     }
 
+    await drainWrites(0);
     const createdAt = new Date().toISOString();
     const kits: BuildSummary['kits'] = [];
     ws.db.transaction(() => {
@@ -166,6 +177,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
     };
   } catch (e) {
     ws.close();
+    await Promise.allSettled(pendingWrites);
     rmSync(staging, { recursive: true, force: true });
     throw e;
   }
