@@ -49,7 +49,10 @@ function sameGrid(a: Volume, b: Volume): boolean {
   return a.columns === b.columns && a.rows === b.rows && a.slices === b.slices;
 }
 
-export async function buildStudy(template: StudyTemplate, outDir: string, onProgress?: (p: BuildProgress) => void): Promise<BuildSummary> {
+/** `signal` cancels the build between volumes; a cancelled build leaves the output folder as it was. */
+export async function buildStudy(
+  template: StudyTemplate, outDir: string, onProgress?: (p: BuildProgress) => void, signal?: AbortSignal,
+): Promise<BuildSummary> {
   const out = resolve(outDir);
   const resolution = resolveCases(template);
   if (resolution.problems.length) throw new BuildError(resolution.problems);
@@ -112,6 +115,7 @@ export async function buildStudy(template: StudyTemplate, outDir: string, onProg
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: reference` });
       }
       for (const methodId of methodIds) {
+        signal?.throwIfAborted();
         await drainWrites(4 * template.readers.length);
         const v = await loadVolume(c.methods[methodId]);
         if (grid && !sameGrid(grid, v)) {

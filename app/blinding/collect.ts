@@ -40,18 +40,21 @@ function importAnswers(db: Database.Database, b: ResultsBundle, knownItems: Set<
   return added;
 }
 
-export function collectBundles(studyDir: string, files: string[]): CollectResult[] {
+/** A bundle to collect: its file name (for messages) and its text, or a path to read it from. */
+export type BundleInput = string | { name: string; text: string };
+
+export function collectBundles(studyDir: string, inputs: BundleInput[]): CollectResult[] {
   const ws = openWorkspace(workspacePath(studyDir), { create: false });
   try {
     const db = ws.db;
     const kits = new Map((db.prepare('SELECT reader_code, kit_id, bundle_key FROM kit').all() as KitRow[]).map((k) => [k.kit_id, k]));
     const results: CollectResult[] = [];
     db.transaction(() => {
-      for (const f of files) {
-        const file = resolve(f);
+      for (const input of inputs) {
+        const file = typeof input === 'string' ? resolve(input) : input.name;
         let text: string;
         try {
-          text = readFileSync(file, 'utf8');
+          text = typeof input === 'string' ? readFileSync(file, 'utf8') : input.text;
         } catch (e) {
           results.push({ file, status: 'refused', added: 0, reason: `cannot read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})` });
           continue;

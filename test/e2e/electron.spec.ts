@@ -7,6 +7,7 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { makeDemo, REPO } from './host.ts';
+import { OPERATIONS } from '../../app/api-contract.ts';
 
 function electronBinary(): string | null {
   const pathTxt = join(REPO, 'node_modules', 'electron', 'path.txt');
@@ -39,7 +40,7 @@ test('the Electron window opens the demo study with isolation, sandbox and the n
       const w = globalThis as unknown as { require?: unknown; process?: unknown; veil: object };
       return { require: typeof w.require, process: typeof w.process, bridge: Object.keys(w.veil).sort() };
     });
-    expect(surface).toEqual({ require: 'undefined', process: 'undefined', bridge: ['info', 'itemPixels', 'listReaders', 'openKit', 'submitAnswer'] });
+    expect(surface).toEqual({ require: 'undefined', process: 'undefined', bridge: [...OPERATIONS].sort() });
     const prefs = await app.evaluate(({ BrowserWindow }) => {
       const w = BrowserWindow.getAllWindows()[0];
       const contents = w.webContents as unknown as { getLastWebPreferences?: () => Record<string, unknown> };
