@@ -27,14 +27,17 @@ export interface CollectResult {
 interface KitRow { reader_code: string; kit_id: string; bundle_key: string | null }
 
 function importAnswers(db: Database.Database, b: ResultsBundle, knownItems: Set<string>): number {
-  const exists = db.prepare('SELECT 1 FROM answer WHERE item_id = ? AND question_id = ? AND revision = ?');
-  const ins = db.prepare("INSERT INTO answer (item_id, question_id, score, revision, seconds, answered_at, source) VALUES (?, ?, ?, ?, ?, ?, 'collected')");
+  const exists = db.prepare("SELECT 1 FROM answer WHERE item_id = ? AND question_id = ? AND reader_revision = ? AND source = 'collected'");
+  const next = db.prepare('SELECT COALESCE(MAX(revision), 0) + 1 AS r FROM answer WHERE item_id = ? AND question_id = ?');
+  const ins = db.prepare(`INSERT INTO answer (item_id, question_id, score, revision, seconds, answered_at, source, reader_revision)
+    VALUES (?, ?, ?, ?, ?, ?, 'collected', ?)`);
   let added = 0;
   for (const r of (b.tables.answer ?? []) as Row[]) {
     const item = String(r.item_id);
     if (!knownItems.has(item)) throw new BundleError(`answer for item '${item}', which is not in ${b.reader}'s kit`);
     if (exists.get(item, r.question_id, r.revision)) continue;
-    ins.run(item, r.question_id, r.score, r.revision, r.seconds ?? null, r.answered_at);
+    const revision = (next.get(item, r.question_id) as { r: number }).r;
+    ins.run(item, r.question_id, r.score, revision, r.seconds ?? null, r.answered_at, r.revision);
     added++;
   }
   return added;

@@ -117,6 +117,8 @@ ALTER TABLE kit ADD COLUMN public_key TEXT;
 ALTER TABLE kit_item ADD COLUMN right_method_id TEXT REFERENCES method(id);
 ALTER TABLE kit_item ADD COLUMN right_series_id INTEGER REFERENCES series(id);
 ALTER TABLE study ADD COLUMN design TEXT;
+-- A collected answer keeps the reader's own revision number; the workspace numbers all revisions itself.
+ALTER TABLE answer ADD COLUMN reader_revision INTEGER;
 -- Every results bundle taken in, verbatim, so a collect can always be re-examined.
 CREATE TABLE bundle (
   id INTEGER PRIMARY KEY AUTOINCREMENT,
@@ -161,6 +163,51 @@ CREATE TABLE audit (
 `,
   },
 ];
+
+readerMigrations.push({
+  version: 2,
+  description: 'reading room: submissions with active time and flags, comments, completed sessions, display checks',
+  sql: `
+-- One row per saved item ("save and next"). The answer rows it wrote share its item_id and
+-- carry answered_at = submitted_at. A flag travels with the submission; a later one replaces it.
+CREATE TABLE submission (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  item_id TEXT NOT NULL,
+  seconds REAL,
+  flag TEXT CHECK (flag IN ('does-not-load', 'unrelated-artifact', 'other')),
+  flag_note TEXT,
+  submitted_at TEXT NOT NULL
+);
+${appendOnlyAnswers('submission')}
+-- Free-text comments on questions that offer one; a changed comment is a new revision.
+CREATE TABLE comment (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  submission_id INTEGER NOT NULL REFERENCES submission(id),
+  item_id TEXT NOT NULL,
+  question_id TEXT NOT NULL,
+  text TEXT NOT NULL,
+  revision INTEGER NOT NULL,
+  UNIQUE (item_id, question_id, revision)
+);
+${appendOnlyAnswers('comment')}
+-- A session is complete when its last item is saved; the next one opens washout_days later.
+CREATE TABLE session_end (
+  session INTEGER PRIMARY KEY,
+  completed_at TEXT NOT NULL
+);
+${appendOnlyAnswers('session_end')}
+-- The reader's answer to the display check before the first session (common practice).
+CREATE TABLE display_check (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  seen INTEGER NOT NULL CHECK (seen IN (0, 1)),
+  checked_at TEXT NOT NULL
+);
+${appendOnlyAnswers('display_check')}
+-- Answers saved before this version: one submission per item and save time.
+INSERT INTO submission (item_id, seconds, submitted_at)
+  SELECT item_id, MAX(seconds), answered_at FROM answer GROUP BY item_id, answered_at ORDER BY MIN(id);
+`,
+});
 
 export function migrate(db: Database.Database, migrations: Migration[], file: string): number {
   const current = db.pragma('user_version', { simple: true }) as number;

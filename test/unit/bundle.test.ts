@@ -151,3 +151,23 @@ describe('results bundles and collect', () => {
     expect(collectBundles(out, [ok])[0].status).toBe('imported');
   });
 });
+
+describe('collect into a workspace that already holds answers', () => {
+  it('adds collected answers as new revisions after simulated ones, and never twice', async () => {
+    const out = await built();
+    const { addWorkspaceAnswers } = await import('../../app/store/workspace.ts');
+    const ws = openWorkspace(join(out, 'workspace.sqlite'));
+    const items = ws.db.prepare("SELECT item_id FROM kit_item WHERE reader_code = 'R1' ORDER BY position").all() as { item_id: string }[];
+    addWorkspaceAnswers(ws.db, [{ itemId: items[0].item_id, questionId: 'sharpness', score: 1, seconds: null, source: 'simulated' }]);
+    ws.close();
+    const bundle = await answerAndExport(out, 'R1', 1, 5);
+    expect(collectBundles(out, [bundle])[0]).toMatchObject({ status: 'imported', added: 2 });
+    const db = new Database(join(out, 'workspace.sqlite'), { readonly: true });
+    const rows = db.prepare("SELECT score, revision, source, reader_revision FROM answer WHERE question_id = 'sharpness' ORDER BY revision").all();
+    db.close();
+    expect(rows).toEqual([
+      { score: 1, revision: 1, source: 'simulated', reader_revision: null },
+      { score: 5, revision: 2, source: 'collected', reader_revision: 1 },
+    ]);
+  });
+});

@@ -1,7 +1,8 @@
 /** Hash routes, so a reload comes back to the same screen: `#/` (choose reader), `#/read/<code>`. */
-export type Route = { name: 'home' } | { name: 'read'; reader: string };
+export type Route = { name: 'home' } | { name: 'read'; reader: string } | { name: 'coordinator' };
 
 function parse(hash: string): Route {
+  if (hash === '#/coordinator') return { name: 'coordinator' };
   const m = /^#\/read\/([^/]+)$/.exec(hash);
   return m ? { name: 'read', reader: decodeURIComponent(m[1]) } : { name: 'home' };
 }
@@ -12,7 +13,7 @@ class RouteStore {
     window.addEventListener('hashchange', () => { this.current = parse(window.location.hash); });
   }
   go(route: Route): void {
-    window.location.hash = route.name === 'read' ? `#/read/${encodeURIComponent(route.reader)}` : '#/';
+    window.location.hash = route.name === 'read' ? `#/read/${encodeURIComponent(route.reader)}` : route.name === 'coordinator' ? '#/coordinator' : '#/';
   }
 }
 
