@@ -1,9 +1,5 @@
 /**
- * Image-space models of what the demo's three reconstructions do to an image. This first demo
- * approximates them in image space (issue "demo study" replaces this with a k-space simulator):
- * - zero-filled at R = 4: coherent aliasing (shifted ghosts along the phase-encode direction) and noise;
- * - iterative: slight blur, little noise;
- * - smoothed zero-filled: the zero-filled image under a strong Gaussian filter (high PSNR, soft edges).
+ * Small image tools of the demo simulator: Gaussian deviates and a separable Gaussian filter.
  */
 import type { MT19937 } from '../blinding/mt19937.ts';
 import type { PhantomShape } from './phantom.ts';
@@ -13,12 +9,6 @@ export function gaussian(rng: MT19937): number {
   let u = 0;
   while (u === 0) u = rng.nextDouble();
   return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rng.nextDouble());
-}
-
-export function addNoise(img: Float32Array, sigma: number, rng: MT19937): Float32Array {
-  const out = new Float32Array(img.length);
-  for (let i = 0; i < img.length; i++) out[i] = Math.abs(img[i] + sigma * gaussian(rng));
-  return out;
 }
 
 /** Separable Gaussian filter of each slice (rows and columns), edges clamped. */
@@ -42,24 +32,6 @@ export function gaussianBlur(img: Float32Array, shape: PhantomShape, sigma: numb
       let acc = 0;
       for (let k = -radius; k <= radius; k++) acc += kernel[k + radius] * tmp[base + Math.min(rows - 1, Math.max(0, r + k)) * columns + c];
       out[base + r * columns + c] = acc;
-    }
-  }
-  return out;
-}
-
-/** Ghosts at multiples of rows / R along the row (phase-encode) direction, wrapping round. */
-export function aliasGhosts(img: Float32Array, shape: PhantomShape, acceleration: number, strength: number): Float32Array {
-  const { rows, columns, slices } = shape;
-  const out = Float32Array.from(img);
-  const shift = Math.round(rows / acceleration);
-  for (let s = 0; s < slices; s++) {
-    const base = s * rows * columns;
-    for (let g = 1; g < acceleration; g++) {
-      const w = strength / g;
-      for (let r = 0; r < rows; r++) {
-        const src = (r + g * shift) % rows;
-        for (let c = 0; c < columns; c++) out[base + r * columns + c] += w * img[base + src * columns + c];
-      }
     }
   }
   return out;

@@ -1,6 +1,7 @@
 /**
- * `veil demo --out DIR`: the invented demo study. Writes a template and .npy sources for six
- * phantom cases, three reconstruction methods and a fully sampled reference, builds the study
+ * `veil demo --out DIR`: the invented demo study. Simulates, for six phantom cases, an MR
+ * acquisition and three reconstructions at R = 4 (./acquire.ts) with the fully sampled image as
+ * the reference, writes a template and the sources, builds the study
  * (DIR/workspace.sqlite, DIR/kits/) and fills answers from two simulated readers into the
  * workspace, labelled `simulated`, so that report and agreement have data at once. The kits stay
  * unanswered for a person to try the reading room.
@@ -14,12 +15,13 @@ import { streamFor } from '../blinding/streams.ts';
 import { addWorkspaceAnswers, openWorkspace, type WorkspaceAnswer } from '../store/workspace.ts';
 import { audit } from '../store/open.ts';
 import { makePhantom, type PhantomShape } from './phantom.ts';
-import { addNoise, aliasGhosts, gaussianBlur } from './degrade.ts';
+import { acquireAndReconstruct, DEMO_ACQUISITION } from './acquire.ts';
+import { gaussianBlur } from './degrade.ts';
 import { latentScores, measureAppearance, simulatedScore, type SimulatedReader } from './simulated-readers.ts';
 
 export const DEMO_SEED = 90210;
 export const DEMO_TEMPLATE = 'demo.study.yaml';
-const SHAPE: PhantomShape = { rows: 192, columns: 192, slices: 8 };
+const SHAPE: PhantomShape = { rows: 256, columns: 256, slices: 4 };
 const CASES = ['case-01', 'case-02', 'case-03', 'case-04', 'case-05', 'case-06'];
 const READERS: SimulatedReader[] = [
   { code: 'R1', bias: 0.25, noise: 0.55 },
@@ -36,10 +38,10 @@ methods:
     label: Zero-filled, R=4
     path: "{case}/zerofill.npy"
   - id: m-iterative
-    label: Iterative, R=4
+    label: Compressed sensing (FISTA, Haar wavelets), R=4
     path: "{case}/iterative.npy"
   - id: m-smoothed
-    label: Smoothed zero-filled, R=4
+    label: Zero-filled then Gaussian-smoothed, R=4
     path: "{case}/smoothed.npy"
 cases: auto
 questions:
@@ -63,28 +65,22 @@ design:
 export interface DemoSummary { template: string; build: BuildSummary; simulatedAnswers: number }
 
 export async function writeDemo(outDir: string, onProgress?: (p: BuildProgress) => void): Promise<DemoSummary> {
-  const methodsOf = (ref: Float32Array, rng = streamFor(DEMO_SEED, 'demo-noise')) => {
-    const zerofill = addNoise(aliasGhosts(ref, SHAPE, 4, 0.22), 0.035, rng);
-    return {
-      'm-zerofill': zerofill,
-      'm-iterative': addNoise(gaussianBlur(ref, SHAPE, 0.6), 0.012, rng),
-      'm-smoothed': gaussianBlur(zerofill, SHAPE, 1.8),
-    };
-  };
   const files = { 'm-zerofill': 'zerofill.npy', 'm-iterative': 'iterative.npy', 'm-smoothed': 'smoothed.npy' } as const;
   const latent = new Map<string, ReturnType<typeof latentScores>>();
+  const shape = [SHAPE.slices, SHAPE.rows, SHAPE.columns];
   for (const caseId of CASES) {
     const dir = join(outDir, 'sources', caseId);
     mkdirSync(dir, { recursive: true });
-    const truth = makePhantom(streamFor(DEMO_SEED, 'demo-phantom', caseId), SHAPE);
-    const noiseRng = streamFor(DEMO_SEED, 'demo-noise', caseId);
-    const reference = addNoise(truth, 0.006, noiseRng);
-    const shape = [SHAPE.slices, SHAPE.rows, SHAPE.columns];
-    writeFileSync(join(dir, 'reference.npy'), writeNpy(reference, shape));
-    for (const [methodId, img] of Object.entries(methodsOf(truth, noiseRng))) {
+    // A slight blur gives the phantom the partial-volume edges of a real image.
+    const truth = gaussianBlur(makePhantom(streamFor(DEMO_SEED, 'demo-phantom', caseId), SHAPE), SHAPE, 0.6);
+    const recon = acquireAndReconstruct(truth, SHAPE, DEMO_ACQUISITION, streamFor(DEMO_SEED, 'demo-acquisition', caseId));
+    writeFileSync(join(dir, 'reference.npy'), writeNpy(recon.reference, shape));
+    const methods = { 'm-zerofill': recon.zerofill, 'm-iterative': recon.iterative, 'm-smoothed': recon.smoothed };
+    for (const [methodId, img] of Object.entries(methods)) {
       writeFileSync(join(dir, files[methodId as keyof typeof files]), writeNpy(img, shape));
-      latent.set(`${caseId}/${methodId}`, latentScores(measureAppearance(img, reference, SHAPE)));
+      latent.set(`${caseId}/${methodId}`, latentScores(measureAppearance(img, recon.reference, SHAPE)));
     }
+    onProgress?.({ done: CASES.indexOf(caseId) + 1, total: CASES.length, what: `simulated acquisition of ${caseId}` });
   }
   const templatePath = join(outDir, DEMO_TEMPLATE);
   writeFileSync(templatePath, TEMPLATE);
