@@ -9,6 +9,9 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { writeNpy } from '../images/npy.ts';
+import { newUid, writeDicomSeries, type DicomSeriesInfo } from '../images/dicom-write.ts';
+import { writeNifti1 } from '../images/nifti-write.ts';
+import { IDENTITY_ORIENTATION, type Volume } from '../images/volume.ts';
 import { loadTemplate } from '../study/parse-template.ts';
 import { buildStudy, type BuildProgress, type BuildSummary } from '../blinding/build.ts';
 import { streamFor } from '../blinding/streams.ts';
@@ -32,17 +35,17 @@ const TEMPLATE = `# Invented demo study of Veil: synthetic phantoms, simulated r
 title: Phantom brain, fourfold acceleration (demo)
 seed: ${DEMO_SEED}
 sources: sources
-reference: "{case}/reference.npy"
+reference: "{case}/reference"         # a folder of DICOM files, as from a scanner
 methods:
   - id: m-zerofill
     label: Zero-filled, R=4
     path: "{case}/zerofill.npy"
   - id: m-iterative
     label: Compressed sensing (FISTA, Haar wavelets), R=4
-    path: "{case}/iterative.npy"
+    path: "{case}/iterative.nii"
   - id: m-smoothed
     label: Zero-filled then Gaussian-smoothed, R=4
-    path: "{case}/smoothed.npy"
+    path: "{case}/smoothed"
 cases: auto
 questions:
   - id: sharpness
@@ -62,10 +65,20 @@ design:
   washout_days: 14
 `;
 
+const SPACING: [number, number, number] = [0.9, 0.9, 4];
+
+function volumeOf(pixels: Float32Array): Volume {
+  return { ...SHAPE, spacing: SPACING, orientation: IDENTITY_ORIENTATION, pixels, provenance: { path: '', format: 'npy', sha256: '' } };
+}
+
+function writeDicomFolder(dir: string, v: Volume, info: DicomSeriesInfo): void {
+  mkdirSync(dir, { recursive: true });
+  writeDicomSeries(v, info).forEach((bytes, i) => writeFileSync(join(dir, `slice-${String(i + 1).padStart(3, '0')}.dcm`), bytes));
+}
+
 export interface DemoSummary { template: string; build: BuildSummary; simulatedAnswers: number }
 
 export async function writeDemo(outDir: string, onProgress?: (p: BuildProgress) => void): Promise<DemoSummary> {
-  const files = { 'm-zerofill': 'zerofill.npy', 'm-iterative': 'iterative.npy', 'm-smoothed': 'smoothed.npy' } as const;
   const latent = new Map<string, ReturnType<typeof latentScores>>();
   const shape = [SHAPE.slices, SHAPE.rows, SHAPE.columns];
   for (const caseId of CASES) {
@@ -74,10 +87,15 @@ export async function writeDemo(outDir: string, onProgress?: (p: BuildProgress) 
     // A slight blur gives the phantom the partial-volume edges of a real image.
     const truth = gaussianBlur(makePhantom(streamFor(DEMO_SEED, 'demo-phantom', caseId), SHAPE), SHAPE, 0.6);
     const recon = acquireAndReconstruct(truth, SHAPE, DEMO_ACQUISITION, streamFor(DEMO_SEED, 'demo-acquisition', caseId));
-    writeFileSync(join(dir, 'reference.npy'), writeNpy(recon.reference, shape));
+    // A mix of formats, as reconstruction teams hand them over: DICOM from the scanner, NumPy and
+    // NIfTI from research code, and a re-exported DICOM series.
+    const studyUid = newUid();
+    writeDicomFolder(join(dir, 'reference'), volumeOf(recon.reference), { studyUid, seriesNumber: 1, seriesDescription: 'fully sampled' });
+    writeFileSync(join(dir, 'zerofill.npy'), writeNpy(recon.zerofill, shape));
+    writeFileSync(join(dir, 'iterative.nii'), writeNifti1(volumeOf(recon.iterative), 'demo reconstruction'));
+    writeDicomFolder(join(dir, 'smoothed'), volumeOf(recon.smoothed), { studyUid, seriesNumber: 2, seriesDescription: 'smoothed' });
     const methods = { 'm-zerofill': recon.zerofill, 'm-iterative': recon.iterative, 'm-smoothed': recon.smoothed };
     for (const [methodId, img] of Object.entries(methods)) {
-      writeFileSync(join(dir, files[methodId as keyof typeof files]), writeNpy(img, shape));
       latent.set(`${caseId}/${methodId}`, latentScores(measureAppearance(img, recon.reference, SHAPE)));
     }
     onProgress?.({ done: CASES.indexOf(caseId) + 1, total: CASES.length, what: `simulated acquisition of ${caseId}` });
