@@ -4,15 +4,21 @@
  * workspace: a reader's session cannot reach the key.
  */
 import { join, resolve } from 'node:path';
-import { ApiError, OPERATIONS, type AppInfo, type KitView, type Progress, type ReaderEntry, type SubmitRequest, type VeilApi } from './api-contract.ts';
+import { ApiError, OPERATIONS, type AppInfo, type KitView, type ReaderEntry, type SubmitRequest, type SubmitResult, type VeilApi } from './api-contract.ts';
 import { findKits, isKitFolder, loadKitManifest, readViewPixels } from './blinding/kit-read.ts';
 import { KIT_MANIFEST, type KitManifest } from './blinding/kit-format.ts';
 import { checkFileBytes, KitIntegrityError, verifyKitIntegrity, type KitIntegrity } from './blinding/kit-integrity.ts';
 import { writeResultsBundle } from './blinding/bundle-export.ts';
-import { readFileSync } from 'node:fs';
-import { ANSWERS_FILE, currentScores, openReaderAnswers, recordSubmission } from './store/reader-answers.ts';
+import { existsSync, readFileSync } from 'node:fs';
+import {
+  ANSWERS_FILE, completedSessions, currentComments, currentScores, lastDisplayCheck, openReaderAnswers, recordDisplayCheck,
+  recordSubmission, submittedItems,
+} from './store/reader-answers.ts';
+import { checkSubmission, progressOf, sessionStates, type StoredState } from './store/reading-state.ts';
 import type { OpenedDatabase } from './store/open.ts';
 import { RESEARCH_NOTICE, VEIL_VERSION } from './notice.ts';
+import { coordinatorOps } from './coordinator-ops.ts';
+import { analysisOps } from './analysis-ops.ts';
 
 export { OPERATIONS };
 export type { VeilApi };
@@ -23,20 +29,19 @@ export interface ApiHandle extends VeilApi {
   close(): void;
 }
 
-function progressOf(manifest: KitManifest, scores: Map<string, Record<string, number>>): Progress {
-  let answered = 0;
-  let next: number | null = null;
-  manifest.items.forEach((it, i) => {
-    const s = scores.get(it.id);
-    const complete = !!s && manifest.questions.every((q) => s[q.id] != null);
-    if (complete) answered++;
-    else if (next === null) next = i;
-  });
-  return { answered, total: manifest.items.length, next };
+function storedState(k: OpenKit): StoredState {
+  const db = k.answers.db;
+  return { submitted: submittedItems(db), scores: currentScores(db), comments: currentComments(db), completed: completedSessions(db) };
+}
+
+export interface ApiOptions {
+  /** The clock that judges washout locks (tests set it; the host uses the system clock). */
+  now?: () => Date;
 }
 
 /** `root` is a study folder (with kits/) or a single kit folder. */
-export function createApi(root: string): ApiHandle {
+export function createApi(root: string, opts: ApiOptions = {}): ApiHandle {
+  const clock = opts.now ?? (() => new Date());
   const dir = resolve(root);
   const mode: AppInfo['mode'] = isKitFolder(dir) ? 'kit' : 'study';
   const kitDirs = mode === 'kit' ? new Map([[loadKitManifest(dir).reader, dir]]) : findKits(dir);
@@ -65,6 +70,30 @@ export function createApi(root: string): ApiHandle {
   }
 
   const api: ApiHandle = {
+    ...coordinatorOps(dir, mode),
+    ...analysisOps(dir, mode),
+    async agreement(req = {}) {
+      // Unblinded statistics: a study folder's workspace only, opened read-only; a kit holds no key.
+      if (mode === 'kit') throw new ApiError('agreement needs the study folder: a reading kit holds no key and no collected answers', 403);
+      const { openWorkspace, unblindedRatings, workspacePath } = await import('./store/workspace.ts');
+      const { agreementReport } = await import('./stats/agreement.ts');
+      if (!existsSync(workspacePath(dir))) throw new ApiError(`${dir} holds no workspace.sqlite: build the study first`, 404);
+      const ws = openWorkspace(workspacePath(dir), { readonly: true });
+      try {
+        const questions = ws.db.prepare('SELECT id, points FROM question').all() as { id: string; points: number }[];
+        const study = ws.db.prepare('SELECT seed FROM study WHERE id = 1').get() as { seed: number };
+        const rows = unblindedRatings(ws.db);
+        if (rows.length === 0) throw new ApiError('no answers in the workspace yet: collect results bundles first', 409);
+        for (const [key, v] of [['bootstrap', req.bootstrap], ['seed', req.seed]] as const) {
+          if (v !== undefined && !(Number.isSafeInteger(v) && v >= 0)) throw new ApiError(`${key} must be a whole number of at least 0, got ${JSON.stringify(v)}`);
+        }
+        const scales = Object.fromEntries(questions.map((q) => [q.id, { points: q.points }]));
+        const report = agreementReport(rows, { question: req.question, method: req.method, scales, bootstrap: req.bootstrap, seed: req.seed ?? study.seed });
+        return { ...report, seedFrom: req.seed === undefined ? 'study' : 'request' };
+      } finally {
+        ws.close();
+      }
+    },
     async info() {
       const first = loadKitManifest([...kitDirs.values()][0]);
       return { product: 'Veil', version: VEIL_VERSION, notice: RESEARCH_NOTICE, mode, title: first.title };
@@ -72,22 +101,31 @@ export function createApi(root: string): ApiHandle {
     async listReaders(): Promise<ReaderEntry[]> {
       return [...kitDirs.keys()].sort().map((reader) => {
         const k = kitOf(reader);
-        const p = progressOf(k.manifest, currentScores(k.answers.db));
+        const p = progressOf(k.manifest, submittedItems(k.answers.db));
         return { reader, items: p.total, answered: p.answered };
       });
     },
     async openKit({ reader }): Promise<KitView> {
       const k = kitOf(reader);
-      const scores = currentScores(k.answers.db);
+      const st = storedState(k);
       const m = k.manifest;
+      const now = clock();
+      const flags = [...st.submitted].filter(([, r]) => r.flag).map(([id, r]) => [id, r.flag!]);
       return {
-        kitId: m.kitId, reader: m.reader, title: m.title, sessions: m.sessions,
-        questions: m.questions,
+        kitId: m.kitId, reader: m.reader, title: m.title, sessions: m.sessions, washoutDays: m.washoutDays,
+        revisits: m.revisits, presets: m.presets,
+        questions: m.questions.map(({ id, text, type, points, low, high, labels, required, comment }) => ({ id, text, type, points, low, high, labels, required, comment })),
         items: m.items.map(({ id, session, views }) => ({
           id, session, views: views.map(({ columns, rows, slices, spacing, window }) => ({ columns, rows, slices, spacing, window })),
         })),
-        answers: Object.fromEntries(scores),
-        progress: progressOf(m, scores),
+        answers: Object.fromEntries(st.scores),
+        comments: Object.fromEntries(st.comments),
+        flags: Object.fromEntries(flags),
+        submitted: [...st.submitted.keys()],
+        sessionStates: sessionStates(m, st.submitted, st.completed, now),
+        displayCheck: lastDisplayCheck(k.answers.db),
+        now: now.toISOString(),
+        progress: progressOf(m, st.submitted),
       };
     },
     async itemPixels({ reader, itemId, view = 0 }) {
@@ -105,23 +143,22 @@ export function createApi(root: string): ApiHandle {
       }
       return px.buffer.slice(px.byteOffset, px.byteOffset + px.byteLength) as ArrayBuffer;
     },
-    async submitAnswer(req: SubmitRequest) {
+    async submitAnswer(req: SubmitRequest): Promise<SubmitResult> {
       const k = kitOf(req.reader);
-      const m = k.manifest;
-      if (!m.items.some((i) => i.id === req.itemId)) throw new ApiError(`kit of reader '${req.reader}' has no item '${req.itemId}'`, 404);
-      const scores = req.scores ?? {};
-      for (const key of Object.keys(scores)) {
-        if (!m.questions.some((q) => q.id === key)) throw new ApiError(`unknown question '${key}'; questions: ${m.questions.map((q) => q.id).join(', ')}`);
+      const now = clock();
+      const c = checkSubmission(k.manifest, req, storedState(k), now);
+      if (!c.unchanged) {
+        recordSubmission(k.answers.db, {
+          itemId: req.itemId, scores: c.scores, comments: c.comments, flag: c.flag, seconds: c.seconds, endsSession: c.endsSession, now,
+        });
       }
-      for (const q of m.questions) {
-        const s = scores[q.id];
-        if (s == null) throw new ApiError(`question '${q.id}' has no score; every question must be answered`);
-        if (!Number.isInteger(s) || s < 1 || s > q.points) throw new ApiError(`question '${q.id}': score must be a whole number from 1 to ${q.points}, got ${JSON.stringify(s)}`);
-      }
-      const seconds = req.seconds == null ? null : Number(req.seconds);
-      if (seconds != null && !(seconds >= 0)) throw new ApiError(`seconds must be a non-negative number, got ${JSON.stringify(req.seconds)}`);
-      recordSubmission(k.answers.db, { itemId: req.itemId, scores, seconds });
-      return { progress: progressOf(m, currentScores(k.answers.db)) };
+      const after = storedState(k);
+      return { progress: progressOf(k.manifest, after.submitted), sessionStates: sessionStates(k.manifest, after.submitted, after.completed, now) };
+    },
+    async confirmDisplayCheck({ reader, seen }) {
+      if (typeof seen !== 'boolean') throw new ApiError('seen must be true or false');
+      const k = kitOf(reader);
+      return { at: recordDisplayCheck(k.answers.db, seen, clock()) };
     },
     async exportResults({ reader }) {
       const k = kitOf(reader);

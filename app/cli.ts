@@ -3,19 +3,20 @@
  * Exit codes: 0 success, 1 failed check or bad input (the message names what and where), 2 usage.
  * Hosts (main/) inject `serve`, so this file stays free of transports.
  */
-import { Command, CommanderError, Option } from 'commander';
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
-import { join, resolve } from 'node:path';
+import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
 import { loadTemplate } from './study/parse-template.ts';
-import { TemplateError } from './study/template.ts';
-import { resolveCases } from './study/cases.ts';
+import { TemplateError, formatTemplateIssue } from './study/template.ts';
+import { checkStudy, formatCheckReport } from './study/check.ts';
 import { loadVolume } from './images/load.ts';
 import { buildStudy, BuildError, type BuildProgress, type BuildSummary } from './blinding/build.ts';
 import { writeDemo } from './demo/demo.ts';
 import { collectBundles } from './blinding/collect.ts';
-import { openWorkspace, unblindedRatings, workspacePath } from './store/workspace.ts';
-import { parseTidyCsv, writeTidyCsv } from './report/tidy-csv.ts';
-import { agreementByGroup, formatAgreementTable } from './stats/agreement.ts';
+import { workspacePath } from './store/workspace.ts';
+import { parseTidyCsv } from './report/tidy-csv.ts';
+import { agreementReport, DEFAULT_BOOTSTRAP_RESAMPLES, DEFAULT_BOOTSTRAP_SEED } from './stats/agreement.ts';
+import { formatAgreementTable } from './stats/agreement-table.ts';
 import { RESEARCH_NOTICE, VEIL_VERSION } from './notice.ts';
 
 export interface CliHooks {
@@ -68,34 +69,23 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .configureOutput({ writeOut: io.out, writeErr: io.err });
 
   program.command('check').argument('<template>', 'study template (*.study.yaml)')
-    .description('validate the template and every source; exit 0 only when a build would work')
-    .option('--json', 'machine-readable output')
+    .description('validate the template and every source: a case x method table, every problem at once, blinding warnings; exit 0 only when a build would work')
+    .option('--json', 'machine-readable output (problems and warnings included)')
     .action(async (file: string, o: { json?: boolean }) => {
-      const t = loadTemplate(file);
-      const res = resolveCases(t);
-      const sources: { case: string; role: string; path: string; shape?: string; error?: string }[] = [];
-      for (const c of res.cases) {
-        const entries: [string, string][] = [...Object.entries(c.methods), ...(c.reference ? [['reference', c.reference] as [string, string]] : [])];
-        for (const [role, path] of entries) {
-          try {
-            const v = await loadVolume(path);
-            sources.push({ case: c.caseId, role, path, shape: `${v.slices}x${v.rows}x${v.columns}` });
-          } catch (e) {
-            sources.push({ case: c.caseId, role, path, error: (e as Error).message });
-          }
-        }
+      let t;
+      try {
+        t = loadTemplate(file);
+      } catch (e) {
+        if (!(o.json && e instanceof TemplateError)) throw e;
+        const problems = e.issues.map((i) => ({ case: null, source: null, file: i.file, line: i.line, key: i.key, message: formatTemplateIssue(i) }));
+        io.out(JSON.stringify({ ok: false, template: file, problems, warnings: [] }, null, 2) + '\n');
+        process.exitCode = 1;
+        return;
       }
-      const problems = [...res.problems, ...sources.filter((s) => s.error).map((s) => s.error!)];
-      if (o.json) {
-        io.out(JSON.stringify({ ok: problems.length === 0, template: t.file, cases: res.cases.length, ignored: res.ignored, problems, sources }, null, 2) + '\n');
-      } else {
-        io.out(`${t.file}: "${t.title}", ${t.methods.length} methods, ${t.questions.length} questions, ${t.readers.length} readers\n`);
-        io.out(`Axis convention: a 3D .npy array is (slices, rows, columns); a 2D array is one slice.\n`);
-        for (const s of sources) io.out(`  ${s.case.padEnd(12)} ${s.role.padEnd(14)} ${s.shape ?? 'ERROR'}  ${s.path}\n`);
-        if (res.ignored.length) io.out(`Ignored folders (no method source): ${res.ignored.join(', ')}\n`);
-        io.out(problems.length ? `${problems.length} problem(s):\n${problems.map((p) => `  - ${p}`).join('\n')}\n` : `OK: ${res.cases.length} cases ready to build.\n`);
-      }
-      if (problems.length) process.exitCode = 1;
+      const report = await checkStudy(t, progressPrinter(io));
+      io.out(o.json ? JSON.stringify(report, null, 2) + '\n'
+        : formatCheckReport(report, { methods: t.methods.length, questions: t.questions.length, readers: t.readers.length }));
+      if (!report.ok) process.exitCode = 1;
     });
 
   program.command('build').argument('<template>', 'study template (*.study.yaml)')
@@ -122,39 +112,79 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     });
 
   program.command('report').argument('<dir>', 'study folder')
-    .description('statistics, figures and tables; writes REPORT/ratings.csv (tidy ratings)')
+    .description('statistics, figures and tables: REPORT/ratings.csv, tables/*.csv, tables.md, tables.tex, figures/*.svg|png, report.html')
     .requiredOption('--out <report>', 'report folder to write')
-    .action(async (dir: string, o: { out: string }) => {
-      const ws = openWorkspace(workspacePath(dir), { readonly: true });
-      try {
-        const rows = unblindedRatings(ws.db);
+    .addOption(new Option('--bootstrap <n>', 'bootstrap resamples (comparisons and agreement)').argParser((v) => wholeNumber(v, 0)).default(2000))
+    .action(async (dir: string, o: { out: string; bootstrap: number }) => {
+      const { loadStudyInputs, AnalysisSettingsError } = await import('./report/study-inputs.ts');
+      const { buildAnalysis } = await import('./report/build-report.ts');
+      const { writeReport } = await import('./report/write-report.ts');
+      let inputs;
+      try { inputs = loadStudyInputs(dir); } catch (e) { throw e instanceof AnalysisSettingsError ? new InputError(e.message) : e; }
+      if (inputs.ratings.length === 0) {
+        // Nothing to analyse yet: still write the (empty) tidy ratings, as before.
+        const { writeTidyCsv } = await import('./report/tidy-csv.ts');
+        const { mkdirSync, writeFileSync } = await import('node:fs');
         mkdirSync(o.out, { recursive: true });
-        const csv = join(resolve(o.out), 'ratings.csv');
-        writeFileSync(csv, writeTidyCsv(rows, ['session', 'seconds', 'source']));
-        const simulated = rows.filter((r) => r.source === 'simulated').length;
-        io.out(`Wrote ${rows.length} ratings to ${csv}${simulated ? ` (${simulated} from simulated readers)` : ''}.\n`);
-      } finally {
-        ws.close();
+        writeFileSync(join(o.out, 'ratings.csv'), writeTidyCsv(inputs.ratings, ['session', 'seconds', 'source']));
+        io.out(`Wrote 0 ratings to ${join(o.out, 'ratings.csv')}; no answers yet in ${workspacePath(dir)}, so no analysis (collect results bundles first).\n`);
+        return;
       }
+      const analysis = await buildAnalysis(inputs, { resamples: o.bootstrap });
+      const written = writeReport(o.out, analysis, inputs.ratings, ['session', 'seconds', 'source']);
+      const simulated = analysis.simulated;
+      io.out(`Wrote ${inputs.ratings.length} ratings to ${join(written.dir, 'ratings.csv')}${simulated ? ` (${simulated} from simulated readers)` : ''}.\n` +
+        `Wrote ${analysis.tables.length} tables, ${analysis.figures.length} figures and the HTML report: ${join(written.dir, 'report.html')}\n`);
     });
 
   program.command('agreement').argument('<ratings>', 'tidy ratings CSV (case,reader,method,question,score)')
-    .description("inter-reader agreement per method and question (Fleiss' kappa, ICC)")
+    .description('inter-reader agreement per method and question, and pooled over methods: ICC, kappas, alpha, W, AC1/AC2')
     .option('--question <id>', 'only this question')
-    .option('--method <id>', 'only this method')
+    .option('--method <id>', 'only this method (then no pooled groups)')
+    .addOption(new Option('--bootstrap <n>', "resamples for the intervals of Fleiss' kappa and Krippendorff's alpha; 0 for none")
+      .argParser((v) => wholeNumber(v, 0)).default(DEFAULT_BOOTSTRAP_RESAMPLES))
+    .addOption(new Option('--seed <s>', 'seed of the bootstrap').argParser((v) => wholeNumber(v, 0)).default(DEFAULT_BOOTSTRAP_SEED))
+    .option('--template <file>', "study template: its questions' scales set the categories and every score is checked against them")
+    .addOption(new Option('--points <n>', 'every question is scored 1..N (for a CSV without its template)')
+      .argParser((v) => wholeNumber(v, 2)).conflicts('template'))
     .option('--json', 'machine-readable output')
-    .action(async (file: string, o: { question?: string; method?: string; json?: boolean }) => {
+    .action(async (file: string, o: { question?: string; method?: string; bootstrap: number; seed: number; template?: string; points?: number; json?: boolean }) => {
       let text: string;
       try { text = readFileSync(file, 'utf8'); } catch (e) { throw new InputError(`${file}: cannot read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`); }
-      const groups = agreementByGroup(parseTidyCsv(text, file), { question: o.question, method: o.method });
-      if (groups.length === 0) throw new InputError(`${file}: no ratings${o.method || o.question ? ' match the filter' : ''}`);
-      io.out(o.json ? JSON.stringify({ groups }, null, 2) + '\n' : formatAgreementTable(groups));
+      const questions = o.template ? loadTemplate(o.template).questions : null;
+      const scales = questions ? Object.fromEntries(questions.map((q) => [q.id, { points: q.scale.points }])) : undefined;
+      let rows;
+      try { rows = parseTidyCsv(text, file, { scales, points: o.points }); } catch (e) { throw new InputError((e as Error).message); }
+      const perQuestion = o.points !== undefined ? Object.fromEntries(rows.map((r) => [r.question, { points: o.points! }])) : scales;
+      const report = agreementReport(rows, { question: o.question, method: o.method, scales: perQuestion, bootstrap: o.bootstrap, seed: o.seed });
+      if (report.groups.length === 0) throw new InputError(`${file}: no ratings${o.method || o.question ? ' match the filter' : ''}`);
+      io.out(o.json ? JSON.stringify(report, null, 2) + '\n' : formatAgreementTable(report));
     });
 
   program.command('metrics')
-    .description('image metrics (PSNR, SSIM, NRMSE, HFEN) for two volumes (not built yet)')
-    .option('--reference <a>').option('--test <b>').option('--json')
-    .action(() => notYet('metrics'));
+    .description('image metrics (PSNR, SSIM, NRMSE, HFEN) of a test volume against a reference, with the conventions used')
+    .requiredOption('--reference <a>', 'reference volume (any supported source)')
+    .requiredOption('--test <b>', 'test volume, same shape as the reference')
+    .option('--mask <m>', "foreground mask: a volume file (nonzero = foreground) or 'auto' (Otsu + largest component of the reference)")
+    .addOption(new Option('--data-range <x>', 'data range L for PSNR and SSIM (default: max - min of the reference)').argParser((v) => {
+      const n = Number(v);
+      if (!(Number.isFinite(n) && n > 0)) throw new InvalidArgumentError('the data range must be a positive number');
+      return n;
+    }))
+    .option('--json', 'machine-readable output')
+    .action(async (o: { reference: string; test: string; mask?: string; dataRange?: number; json?: boolean }) => {
+      const { compareVolumes, metricsJson, formatVolumeMetrics } = await import('./metrics/compare-volumes.ts');
+      const { MetricsError } = await import('./metrics/metrics-error.ts');
+      const [reference, test] = [await loadVolume(o.reference), await loadVolume(o.test)];
+      const mask = o.mask === undefined ? null : o.mask === 'auto' ? 'auto' as const : await loadVolume(o.mask);
+      try {
+        const r = compareVolumes(reference, test, { mask, dataRange: o.dataRange });
+        io.out(o.json ? JSON.stringify({ ...metricsJson(r), reference: reference.provenance.path, test: test.provenance.path }, null, 2) + '\n'
+          : formatVolumeMetrics(r, reference.provenance.path, test.provenance.path));
+      } catch (e) {
+        throw e instanceof MetricsError ? new InputError(e.message) : e;
+      }
+    });
 
   program.command('serve').argument('[dir]', 'study folder or reading kit', '.')
     .description('serve the reading room on http://127.0.0.1 (token-protected)')
@@ -174,12 +204,14 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
       else io.out(`Demo template: ${s.template}\n${describeBuild(s.build)}Simulated readers filled ${s.simulatedAnswers} answers into the workspace (labelled simulated).\n`);
     });
 
-  function notYet(name: string): never {
-    io.err(`veil ${name}: not built yet in this version of Veil.\n`);
-    throw new CommanderError(2, 'veil.notBuilt', `veil ${name} is not built yet`);
-  }
-
   return program;
+}
+
+/** A whole-number option value of at least `min`, else a usage error (exit 2). */
+function wholeNumber(v: string, min: number): number {
+  const n = Number(v);
+  if (!/^\d+$/.test(v) || !Number.isSafeInteger(n) || n < min) throw new InvalidArgumentError(`expected a whole number of at least ${min}, got '${v}'`);
+  return n;
 }
 
 function parsePort(v: string): number {

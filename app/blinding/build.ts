@@ -9,6 +9,8 @@ import { join, resolve } from 'node:path';
 import type { StudyTemplate } from '../study/template.ts';
 import { resolveCases } from '../study/cases.ts';
 import { loadVolume } from '../images/load.ts';
+import { resampleInPlane } from '../images/resample.ts';
+import { displayPolicy, type DisplaySpec } from '../study/template.ts';
 import { writeNpy } from '../images/npy.ts';
 import type { Volume } from '../images/volume.ts';
 import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeSeries, writeStudy } from '../store/workspace.ts';
@@ -17,7 +19,7 @@ import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledIte
 import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from './kit-integrity.ts';
 import { randomBytes } from 'node:crypto';
 import { GENERATOR_NAME } from './streams.ts';
-import { toDisplayUint16 } from './display-scale.ts';
+import { displayMapFor, percentileWindow, toDisplayUint16, type DisplayAnchor } from './display-scale.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
 export const KITS_DIR = 'kits';
@@ -45,8 +47,18 @@ export interface BuildSummary {
   kits: { reader: string; kitId: string; path: string; items: number; perSession: number[] }[];
 }
 
-function sameGrid(a: Volume, b: Volume): boolean {
-  return a.columns === b.columns && a.rows === b.rows && a.slices === b.slices;
+/**
+ * Why a method cannot be shown on the case's grid (the reference's, else the first method's), or
+ * null. A different slice count is always refused; a different matrix only with a reference and
+ * `display.matching: none` (without a reference, each method keeps its matrix; `veil check` warns).
+ */
+function gridMismatch(grid: Volume, v: Volume, display: DisplaySpec, hasReference: boolean): string | null {
+  const shapes = `is ${v.slices}x${v.rows}x${v.columns} but ${grid.provenance.path} is ${grid.slices}x${grid.rows}x${grid.columns} (slices x rows x columns)`;
+  if (v.slices !== grid.slices) return `${shapes}; every method of a case must have the same slices`;
+  if ((v.rows !== grid.rows || v.columns !== grid.columns) && display.matching === 'none' && hasReference) {
+    return `${shapes}; set display: {matching: reference-grid} in the template to resample every method to the reference's matrix`;
+  }
+  return null;
 }
 
 /** `signal` cancels the build between volumes; a cancelled build leaves the output folder as it was. */
@@ -106,33 +118,37 @@ export async function buildStudy(
         .run(signingKey.privatePem, signingKey.publicDer, new Date().toISOString());
     })();
 
+    const display = displayPolicy(template);
     for (const c of resolution.cases) {
       let grid: Volume | null = null;
+      let anchor: DisplayAnchor | null = null;
       if (c.reference) {
         const ref = await loadVolume(c.reference);
         grid = ref;
+        anchor = { bounds: percentileWindow(ref.pixels, display.percentiles), pixels: display.intensity === 'match-reference' ? ref.pixels : null };
         seriesIds.set(`${c.caseId}\u0000`, writeSeries(ws.db, c.caseId, null, ref));
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: reference` });
       }
       for (const methodId of methodIds) {
         signal?.throwIfAborted();
         await drainWrites(4 * template.readers.length);
-        const v = await loadVolume(c.methods[methodId]);
-        if (grid && !sameGrid(grid, v)) {
-          throw new BuildError([`case ${c.caseId}: ${methodId} (${v.provenance.path}) is ${v.slices}x${v.rows}x${v.columns} ` +
-            `but ${grid.provenance.path} is ${grid.slices}x${grid.rows}x${grid.columns} (slices x rows x columns); every method of a case must share one grid`]);
-        }
-        grid ??= v;
-        seriesIds.set(`${c.caseId}\u0000${methodId}`, writeSeries(ws.db, c.caseId, methodId, v));
-        const display = toDisplayUint16(v.pixels);
-        const bytes = writeNpy(display.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
+        const source = await loadVolume(c.methods[methodId]);
+        const mismatch = grid && gridMismatch(grid, source, display, !!c.reference);
+        if (mismatch) throw new BuildError([`case ${c.caseId}: ${methodId} (${source.provenance.path}) ${mismatch}`]);
+        grid ??= source;
+        seriesIds.set(`${c.caseId}\u0000${methodId}`, writeSeries(ws.db, c.caseId, methodId, source));
+        // The display policy (design.md): the common grid first, then the intensity mapping.
+        const v = display.matching === 'reference-grid' ? resampleInPlane(source, grid.rows, grid.columns) : source;
+        anchor ??= { bounds: percentileWindow(v.pixels, display.percentiles), pixels: null };
+        const shown = toDisplayUint16(v.pixels, displayMapFor(display.intensity, display.percentiles, v.pixels, anchor));
+        const bytes = writeNpy(shown.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
         const sha256 = sha256Hex(bytes);
         for (const { it, view } of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
           const image = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
           pendingWrites.push(writeFile(join(staging, KITS_DIR, it.reader, image), bytes));
           imageHashes.get(it.reader)!.set(image, { path: image, bytes: bytes.length, sha256 });
           const entry = kitItems.get(it.reader)!.get(it.itemId) ?? { id: it.itemId, session: it.session, views: [] };
-          entry.views[view] = { image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: display.window };
+          entry.views[view] = { image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: shown.window };
           kitItems.get(it.reader)!.set(it.itemId, entry);
         }
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: ${methodId}` });

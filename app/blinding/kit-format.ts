@@ -7,6 +7,13 @@ export const KIT_FORMAT = 'veil-kit';
 export const KIT_VERSION = 1;
 export const KIT_MANIFEST = 'kit.json';
 
+/**
+ * likert: a scale from `low` (1) to `high` (`points`); yes-no: points 2, scored 1 = no, 2 = yes;
+ * comparative (side-by-side items): an odd number of points, `low` names the left end ("left much
+ * better"), `high` the right end, the middle point is no difference.
+ */
+export type KitQuestionType = 'likert' | 'yes-no' | 'comparative';
+
 export interface KitQuestion {
   id: string;
   text: string;
@@ -14,6 +21,23 @@ export interface KitQuestion {
   low: string;
   high: string;
   labels: Record<string, string>;
+  /** Kits written before these three fields read as likert, required, no comment. */
+  type: KitQuestionType;
+  /** Submission is refused while a required question has no score. */
+  required: boolean;
+  /** The reader may add a free-text comment to this question. */
+  comment: boolean;
+}
+
+/**
+ * A named window in the kit's display units (the uint16 values of its images, 0..4000 after the
+ * build's display scaling; see ./display-scale.ts). The reading room offers them beside its own
+ * default, automatic and reset windows.
+ */
+export interface KitWindowPreset {
+  name: string;
+  center: number;
+  width: number;
 }
 
 /** One image volume of an item. */
@@ -44,6 +68,10 @@ export interface KitManifest {
   sessions: number;
   washoutDays: number;
   presentation: 'single' | 'side-by-side';
+  /** The reader may go back (and change answers) within the session not yet complete. Absent: false. */
+  revisits: boolean;
+  /** Window presets offered in the reading room. Absent: none. */
+  presets: KitWindowPreset[];
   questions: KitQuestion[];
   items: KitItem[];
 }

@@ -5,7 +5,7 @@ import { existsSync, readFileSync, readdirSync } from 'node:fs';
 import { join, resolve, sep } from 'node:path';
 import { readNpy } from '../images/npy.ts';
 import { checkFileBytes, type KitIntegrity } from './kit-integrity.ts';
-import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitImage, type KitManifest } from './kit-format.ts';
+import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitImage, type KitManifest, type KitQuestionType } from './kit-format.ts';
 import { KITS_DIR } from './build.ts';
 
 export function isKitFolder(dir: string): boolean {
@@ -26,7 +26,25 @@ export function loadKitManifest(dir: string): KitManifest {
   if (!Array.isArray(m.items) || !Array.isArray(m.questions) || typeof m.kitId !== 'string' || typeof m.reader !== 'string') {
     throw new Error(`${file}: kit manifest is incomplete (needs kitId, reader, questions and items)`);
   }
-  return m as KitManifest;
+  return withReadingDefaults(m as KitManifest, file);
+}
+
+const QUESTION_TYPES: readonly KitQuestionType[] = ['likert', 'yes-no', 'comparative'];
+
+/** Kits written before the reading-room fields (question type, required, comment, revisits, presets) read with their defaults. */
+function withReadingDefaults(m: KitManifest, file: string): KitManifest {
+  const questions = m.questions.map((q) => {
+    const type = q.type ?? 'likert';
+    if (!QUESTION_TYPES.includes(type)) throw new Error(`${file}: question '${q.id}' has type ${JSON.stringify(type)}; expected one of: ${QUESTION_TYPES.join(', ')}`);
+    return { ...q, type, required: q.required ?? true, comment: q.comment ?? false };
+  });
+  const presets = m.presets ?? [];
+  presets.forEach((p, i) => {
+    if (typeof p?.name !== 'string' || !(p.width > 0) || !Number.isFinite(p.center)) {
+      throw new Error(`${file}: presets[${i}] must have a name, a center and a width above 0`);
+    }
+  });
+  return { ...m, revisits: m.revisits ?? false, presets, questions };
 }
 
 /** Kit folders of a study folder (`<dir>/kits/<reader>/`), by reader code. */

@@ -15,18 +15,22 @@
 import { createHash } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
 import { resolve } from 'node:path';
+import { SourceError } from './source-error.ts';
 import { IDENTITY_ORIENTATION } from './volume.ts';
 import type { Volume } from './volume.ts';
 
-export class NpyError extends Error {
-  constructor(
-    public readonly path: string,
-    detail: string,
-  ) {
-    super(`${path}: ${detail}`);
+export class NpyError extends SourceError {
+  constructor(path: string, detail: string) {
+    super(path, detail);
     this.name = 'NpyError';
   }
 }
+
+/** Veil's data type names (shared with the DICOM and NIfTI readers) for NumPy's codes. */
+const TYPE_NAMES: Record<string, string> = {
+  f4: 'float32', f8: 'float64', i2: 'int16', u2: 'uint16', i4: 'int32', u1: 'uint8', i1: 'int8',
+  c8: 'complex64 (magnitude)', c16: 'complex128 (magnitude)',
+};
 
 const MAGIC = [0x93, 0x4e, 0x55, 0x4d, 0x50, 0x59]; // \x93NUMPY
 const ALIGN = 64;
@@ -88,6 +92,8 @@ type PyValue = string | number | boolean | null | PyValue[] | Map<string, PyValu
 
 class HeaderParser {
   private pos = 0;
+  /** Nesting depth: a header is a dict holding a tuple; a deep nest is damage, not data. */
+  private depth = 0;
 
   constructor(
     private readonly text: string,
@@ -111,6 +117,7 @@ class HeaderParser {
 
   private value(): PyValue {
     this.space();
+    if (this.depth > 8) this.fail('nesting too deep');
     const c = this.text[this.pos];
     if (c === '{') return this.dict();
     if (c === '(') return this.sequence(')');
@@ -139,6 +146,7 @@ class HeaderParser {
 
   private sequence(close: string): PyValue[] {
     this.pos++;
+    this.depth++;
     const items: PyValue[] = [];
     for (;;) {
       this.space();
@@ -149,11 +157,13 @@ class HeaderParser {
       else if (this.text[this.pos] !== close) this.fail(`expected ',' or '${close}'`);
     }
     this.pos++;
+    this.depth--;
     return items;
   }
 
   private dict(): Map<string, PyValue> {
     this.pos++;
+    this.depth++;
     const map = new Map<string, PyValue>();
     for (;;) {
       this.space();
@@ -168,6 +178,7 @@ class HeaderParser {
       else if (this.text[this.pos] !== '}') this.fail("expected ',' or '}'");
     }
     this.pos++;
+    this.depth--;
     return map;
   }
 }
@@ -275,6 +286,7 @@ export function readNpy(bytes: Uint8Array, path: string): Volume {
     orientation: [...IDENTITY_ORIENTATION],
     pixels,
     provenance: { path, format: 'npy', sha256: createHash('sha256').update(bytes).digest('hex') },
+    dataType: TYPE_NAMES[dtype.code],
   };
 }
 

@@ -9,6 +9,8 @@
  * Reading checks the contract and names the file, the line and the column of the first problem:
  * a missing required column, an empty required field, a score that is not a whole number, and the
  * same (case, reader, method, question) rated twice (naming both lines). Extra columns stay strings.
+ * Given the questions' scales, it also refuses a score outside its question's scale and a question
+ * that has none.
  */
 import { parse } from 'csv-parse/sync';
 import { stringify } from 'csv-stringify/sync';
@@ -85,11 +87,18 @@ const LINE_BREAK = /\r\n|\r|\n/g;
 const CRLF = /\r\n/g;
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
 
+export interface TidyCsvOptions {
+  /** Likert scale per question id; scores must lie in 1..points. */
+  scales?: Record<string, { points: number }>;
+  /** One scale 1..points for every question (when `scales` is not given). */
+  points?: number;
+}
+
 /**
  * Parse a tidy ratings CSV. `file` is used in error messages only.
  * Blank lines are skipped; a UTF-8 byte order mark is allowed.
  */
-export function parseTidyCsv(text: string, file: string): TidyRow[] {
+export function parseTidyCsv(text: string, file: string, opts: TidyCsvOptions = {}): TidyRow[] {
   let records: { record: string[]; info: { lines: number } }[];
   try {
     records = parse(text, { bom: true, skip_empty_lines: true, info: true }) as unknown as typeof records;
@@ -157,6 +166,18 @@ export function parseTidyCsv(text: string, file: string): TidyRow[] {
     const score = Number(rawScore);
     if (!Number.isInteger(score)) {
       throw new Error(`${at('score')}: ${rawScore} is not a whole number; scores are whole numbers on the question's scale`);
+    }
+
+    if (opts.scales || opts.points !== undefined) {
+      const scale = opts.scales ? opts.scales[key.question] : { points: opts.points as number };
+      if (!scale) {
+        throw new Error(
+          `${at('question')}: question "${key.question}" has no scale; known questions: ${Object.keys(opts.scales ?? {}).join(', ') || '(none)'}`,
+        );
+      }
+      if (score < 1 || score > scale.points) {
+        throw new Error(`${at('score')}: ${score} is outside the scale 1..${scale.points} of question "${key.question}"`);
+      }
     }
 
     const row: TidyRow = { ...key, score };

@@ -19,7 +19,12 @@
  * serves to reject scores outside it.
  *
  * κ is undefined (NaN here) when every rating falls into one category (P̄_e = 1).
+ *
+ * Confidence interval: percentile bootstrap over subjects (./bootstrap.ts). `fleissKappaWeighted`
+ * evaluates κ with subject i counted w_i times — P̄ = Σ w_i P_i / Σ w_i and
+ * p_j = Σ w_i n_ij / (n Σ w_i) — so a resample needs no copy of the data.
  */
+import type { CategoryCounts } from './rating-matrix.ts';
 
 export interface FleissKappa {
   /** Fleiss' κ; NaN when all ratings fall into a single category. */
@@ -115,4 +120,44 @@ export function fleissKappa(
     return out;
   });
   return fleissKappaFromCounts(counts);
+}
+
+/**
+ * Fleiss' κ over the subjects rated by exactly `raters` readers (complete cases), subject i counted
+ * `weights[i]` times; the returned function is for repeated use (the bootstrap), with each
+ * subject's P_i computed once. NaN when no such subject is drawn or P̄_e = 1.
+ */
+export function weightedFleissKappa(cc: CategoryCounts, raters: number): (weights: ArrayLike<number>) => number {
+  const q = cc.categories.length;
+  const completeList: number[] = [];
+  for (let i = 0; i < cc.subjects; i++) if (cc.rated[i] === raters) completeList.push(i);
+  const subject = Int32Array.from(completeList);
+  const agreement = Float64Array.from(completeList, (i) => {
+    let squares = 0;
+    for (let j = 0; j < q; j++) squares += cc.counts[i * q + j] ** 2;
+    return (squares - raters) / (raters * (raters - 1));
+  });
+  const totals = new Float64Array(q);
+  return (weights) => {
+    totals.fill(0);
+    let sumW = 0;
+    let sumP = 0;
+    for (let k = 0; k < subject.length; k++) {
+      const i = subject[k];
+      const w = weights[i];
+      if (w === 0) continue;
+      for (let j = 0; j < q; j++) totals[j] += w * cc.counts[i * q + j];
+      sumP += w * agreement[k];
+      sumW += w;
+    }
+    if (sumW === 0) return Number.NaN;
+    let pExpected = 0;
+    for (let j = 0; j < q; j++) pExpected += (totals[j] / (sumW * raters)) ** 2;
+    return pExpected === 1 ? Number.NaN : (sumP / sumW - pExpected) / (1 - pExpected);
+  };
+}
+
+/** Fleiss' κ over the complete subjects, subject i counted `weights[i]` times. */
+export function fleissKappaWeighted(cc: CategoryCounts, raters: number, weights: ArrayLike<number>): number {
+  return weightedFleissKappa(cc, raters)(weights);
 }

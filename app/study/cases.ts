@@ -25,20 +25,22 @@ export function sourcePath(template: StudyTemplate, pattern: string, caseId: str
   return join(template.sources, pattern.replaceAll('{case}', caseId));
 }
 
+/** The case folders to look at: the listed ones, or every visible folder under sources ('auto'); null when sources is no folder. */
+export function caseCandidates(template: StudyTemplate): string[] | null {
+  if (!existsSync(template.sources) || !statSync(template.sources).isDirectory()) return null;
+  if (template.cases !== 'auto') return template.cases;
+  return readdirSync(template.sources, { withFileTypes: true })
+    .filter((d) => d.isDirectory() && !d.name.startsWith('.'))
+    .map((d) => d.name)
+    .sort((a, b) => a.localeCompare(b, 'en', { numeric: true }));
+}
+
 export function resolveCases(template: StudyTemplate): CaseResolution {
   const problems: string[] = [];
   const ignored: string[] = [];
-  if (!existsSync(template.sources) || !statSync(template.sources).isDirectory()) {
+  const candidates = caseCandidates(template);
+  if (!candidates) {
     return { cases: [], problems: [`${template.file}: sources: folder ${template.sources} does not exist`], ignored };
-  }
-  let candidates: string[];
-  if (template.cases === 'auto') {
-    candidates = readdirSync(template.sources, { withFileTypes: true })
-      .filter((d) => d.isDirectory() && !d.name.startsWith('.'))
-      .map((d) => d.name)
-      .sort((a, b) => a.localeCompare(b, 'en', { numeric: true }));
-  } else {
-    candidates = template.cases;
   }
   const cases: CaseSources[] = [];
   for (const caseId of candidates) {

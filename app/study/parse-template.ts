@@ -14,7 +14,7 @@ import { LineCounter, isAlias, isMap, isScalar, isSeq, parseDocument } from 'yam
 import type { Document, Node } from 'yaml';
 import { EXPECTED_KEYWORD, MAX_POINTS, MIN_POINTS, templateSchema } from './schema.ts';
 import { TemplateError } from './template.ts';
-import type { Question, StudyTemplate, TemplateIssue } from './template.ts';
+import type { DisplaySpec, Question, StudyTemplate, TemplateIssue } from './template.ts';
 
 type Segment = string | number;
 type Anchor = 'key' | 'value';
@@ -245,6 +245,51 @@ function checkLabelKeys(data: Record<string, unknown>, where: Locator): void {
   });
 }
 
+/** Scale rules by question type: yes-no has none; likert and comparative need one; comparative is odd and side-by-side. */
+function checkQuestionTypes(data: Record<string, unknown>, where: Locator): void {
+  const questions = data.questions;
+  if (!Array.isArray(questions)) return;
+  const sideBySide = isRecord(data.design) && data.design.presentation === 'side-by-side';
+  questions.forEach((q, index) => {
+    if (!isRecord(q)) return;
+    const type = q.type ?? 'likert';
+    if (type === 'yes-no') {
+      // `labels` is {} by the schema's default when not written.
+      for (const key of ['scale', 'labels']) {
+        if (key === 'scale' ? 'scale' in q : isRecord(q.labels) && Object.keys(q.labels).length > 0) where.add(['questions', index, key], 'key', `a yes-no question has no ${key} (it is scored 1 = no, 2 = yes); remove '${key}'`);
+      }
+      return;
+    }
+    if (!('scale' in q)) {
+      where.add(['questions', index, 'scale'], 'key', `missing required key 'scale'; expected a Likert scale with the keys points, low and high`);
+      return;
+    }
+    if (type !== 'comparative') return;
+    const points = isRecord(q.scale) ? q.scale.points : undefined;
+    if (typeof points === 'number' && Number.isInteger(points) && points % 2 === 0) {
+      where.add(['questions', index, 'scale', 'points'], 'value',
+        `a comparative question needs an odd number of points (symmetric about 'no difference' in the middle), got ${points}`);
+    }
+    if (!sideBySide) {
+      where.add(['questions', index, 'type'], 'value', "a comparative question needs 'design: {presentation: side-by-side}' (it compares two images)");
+    }
+  });
+}
+
+/** Display rules the schema cannot express: percentiles in order; match-reference needs a reference. */
+function checkDisplay(data: Record<string, unknown>, where: Locator): void {
+  const d = data.display;
+  if (!isRecord(d)) return;
+  const p = d.percentiles;
+  if (Array.isArray(p) && p.length === 2 && typeof p[0] === 'number' && typeof p[1] === 'number' && !(p[0] < p[1])) {
+    where.add(['display', 'percentiles'], 'value', `the low percentile must be below the high one, got [${p[0]}, ${p[1]}]; e.g. [0, 99.5]`);
+  }
+  if (d.intensity === 'match-reference' && data.reference === undefined) {
+    where.add(['display', 'intensity'], 'value',
+      "match-reference maps each method onto the reference, but the template has no 'reference'; add one, or use intensity: percentile");
+  }
+}
+
 const PLACEHOLDER = /\{[^}]*\}/g;
 
 function checkPlaceholders(path: Segment[], pattern: unknown, where: Locator): void {
@@ -300,7 +345,9 @@ export function parseTemplate(text: string, file: string): StudyTemplate {
     checkUnique(data, 'readers', null, 'reader', where);
     checkUnique(data, 'cases', null, 'case', where);
     checkLabelKeys(data, where);
+    checkQuestionTypes(data, where);
     checkPaths(data, where);
+    checkDisplay(data, where);
   }
   if (where.issues.length > 0) throw new TemplateError(sortIssues(where.issues));
 
@@ -341,10 +388,14 @@ interface RawTemplate {
   reference?: string;
   methods: StudyTemplate['methods'];
   cases: StudyTemplate['cases'];
-  questions: (Omit<Question, 'labels'> & { labels: Record<string, string> })[];
+  questions: (Omit<Question, 'labels' | 'scale'> & { scale?: Question['scale']; labels?: Record<string, string> })[];
   readers: string[];
   design: StudyTemplate['design'];
+  display?: DisplaySpec;
 }
+
+/** How a yes-no question is scored: 1 = no, 2 = yes. */
+export const YES_NO_SCALE = { points: 2, low: 'No', high: 'Yes' } as const;
 
 function toStudyTemplate(raw: RawTemplate, file: string): StudyTemplate {
   const absolute = resolve(file);
@@ -362,14 +413,21 @@ function toStudyTemplate(raw: RawTemplate, file: string): StudyTemplate {
     questions: raw.questions.map((q) => ({
       id: q.id,
       text: q.text,
-      scale: { points: q.scale.points, low: q.scale.low, high: q.scale.high },
-      labels: Object.fromEntries(Object.entries(q.labels).map(([k, v]) => [Number(k), v])),
+      scale: q.type === 'yes-no' ? { ...YES_NO_SCALE } : { points: q.scale!.points, low: q.scale!.low, high: q.scale!.high },
+      labels: Object.fromEntries(Object.entries(q.labels ?? {}).map(([k, v]) => [Number(k), v])),
+      ...(q.type !== undefined ? { type: q.type } : {}),
+      ...(q.required !== undefined ? { required: q.required } : {}),
+      ...(q.comment !== undefined ? { comment: q.comment } : {}),
     })),
     readers: [...raw.readers],
     design: {
       presentation: raw.design.presentation,
       sessions: raw.design.sessions,
       washout_days: raw.design.washout_days,
+      ...(raw.design.revisits !== undefined ? { revisits: raw.design.revisits } : {}),
     },
+    ...(raw.display
+      ? { display: { matching: raw.display.matching, intensity: raw.display.intensity, percentiles: [raw.display.percentiles[0], raw.display.percentiles[1]] } }
+      : {}),
   };
 }

@@ -63,14 +63,21 @@ const cases: SchemaObject = {
   },
 };
 
+/** likert: one image on a scale; yes-no: scored 1 = no, 2 = yes; comparative: two images side by side. */
+export const QUESTION_TYPES = ['likert', 'yes-no', 'comparative'] as const;
+
 const question: SchemaObject = {
   type: 'object',
-  expected: 'a question with the keys id, text and scale (labels optional)',
-  required: ['id', 'text', 'scale'],
+  expected: 'a question with the keys id, text and scale (optional: type, labels, required, comment; a yes-no question has no scale)',
+  // `scale` is required for likert and comparative questions: checked in ./parse-template.ts.
+  required: ['id', 'text'],
   additionalProperties: false,
   properties: {
     id: id('sharpness'),
     text: text('non-empty text (the question as the reader sees it)'),
+    type: { type: 'string', enum: [...QUESTION_TYPES], expected: `one of: ${QUESTION_TYPES.join(', ')}` },
+    required: { type: 'boolean', expected: 'true or false (whether the reader must answer before moving on; default true)' },
+    comment: { type: 'boolean', expected: 'true or false (whether the reader may add a free-text comment; default false)' },
     scale: {
       type: 'object',
       expected: 'a Likert scale with the keys points, low and high',
@@ -98,7 +105,7 @@ const question: SchemaObject = {
 
 const design: SchemaObject = {
   type: 'object',
-  expected: 'a mapping with the keys presentation, sessions and washout_days',
+  expected: 'a mapping with the keys presentation, sessions, washout_days and revisits',
   default: {},
   additionalProperties: false,
   properties: {
@@ -110,6 +117,45 @@ const design: SchemaObject = {
     },
     sessions: { type: 'integer', minimum: 1, default: 1, expected: 'an integer of at least 1' },
     washout_days: { type: 'integer', minimum: 0, default: 0, expected: 'an integer of at least 0' },
+    revisits: { type: 'boolean', expected: 'true or false (whether a reader may go back and change answers of the current session; default false)' },
+  },
+};
+
+/** How methods of different matrix sizes are brought onto one grid for display (design.md, "Display policy"). */
+export const MATCHING_POLICIES = ['none', 'reference-grid'] as const;
+/** How intensities are normalized for display (design.md, "Display policy"). */
+export const INTENSITY_POLICIES = ['none', 'percentile', 'match-reference'] as const;
+
+const display: SchemaObject = {
+  type: 'object',
+  expected: 'a mapping with the keys matching, intensity and percentiles (all optional)',
+  additionalProperties: false,
+  properties: {
+    matching: {
+      type: 'string',
+      enum: [...MATCHING_POLICIES],
+      default: 'none',
+      expected:
+        'one of: none (every image keeps its own matrix), reference-grid (every method is resampled in-plane, ' +
+        "with linear interpolation, to the reference's rows and columns, or the first method's when there is no reference)",
+    },
+    intensity: {
+      type: 'string',
+      enum: [...INTENSITY_POLICIES],
+      default: 'percentile',
+      expected:
+        "one of: none (one window per case, the reference's, for every method), percentile (each image scaled " +
+        'from its own low to high percentile), match-reference (each method mapped linearly onto the reference by a ' +
+        "least-squares fit, then shown in the reference's window; needs a reference)",
+    },
+    percentiles: {
+      type: 'array',
+      minItems: 2,
+      maxItems: 2,
+      default: [0, 99.5],
+      expected: 'two percentiles [low, high] from 0 to 100, low below high (e.g. [0, 99.5])',
+      items: { type: 'number', minimum: 0, maximum: 100, expected: 'a percentile from 0 to 100' },
+    },
   },
 };
 
@@ -149,7 +195,7 @@ export const templateSchema: SchemaObject = {
       },
     },
     design,
-    display: { type: 'object', expected: 'a mapping (display settings)' },
+    display,
     analysis: { type: 'object', expected: 'a mapping (analysis settings)' },
   },
 };

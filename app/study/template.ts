@@ -8,12 +8,25 @@ export interface LikertScale {
   high: string;
 }
 
+export type QuestionType = 'likert' | 'yes-no' | 'comparative';
+
 export interface Question {
   id: string;
   text: string;
+  /**
+   * A yes-no question gets the scale {points: 2, low: No, high: Yes} (scored 1 = no, 2 = yes).
+   * A comparative question (side-by-side only) has an odd number of points, symmetric about the
+   * middle one (no difference); `low` names the left end, `high` the right end.
+   */
   scale: LikertScale;
   /** Optional names for individual points, keyed by point (1..points). */
   labels: Record<number, string>;
+  /** Present only when the template says; absent means likert. */
+  type?: QuestionType;
+  /** Present only when the template says; absent means required. */
+  required?: boolean;
+  /** Present only when the template says; true offers an optional free-text comment. */
+  comment?: boolean;
 }
 
 export interface MethodSpec {
@@ -28,6 +41,30 @@ export interface DesignSpec {
   presentation: 'single' | 'side-by-side';
   sessions: number;
   washout_days: number;
+  /** Present only when the template says; true lets a reader change answers of the current session. */
+  revisits?: boolean;
+}
+
+/**
+ * How images are prepared for readers (design.md, "Display policy"). `matching`: 'reference-grid'
+ * resamples every method in-plane (linear interpolation) onto the reference's rows and columns
+ * (the first method's without a reference). `intensity`: 'none' shows every method of a case in
+ * the reference's window; 'percentile' scales each image from its own low to high percentile;
+ * 'match-reference' maps each method onto the reference by a least-squares line first.
+ */
+export interface DisplaySpec {
+  matching: 'none' | 'reference-grid';
+  intensity: 'none' | 'percentile' | 'match-reference';
+  /** Low and high percentile (0-100) of the display window. */
+  percentiles: [number, number];
+}
+
+export const DEFAULT_DISPLAY: DisplaySpec = { matching: 'none', intensity: 'percentile', percentiles: [0, 99.5] };
+
+/** The template's display policy, with the defaults where it has no `display` section. */
+export function displayPolicy(t: Pick<StudyTemplate, 'display'>): DisplaySpec {
+  const d = t.display ?? DEFAULT_DISPLAY;
+  return { matching: d.matching, intensity: d.intensity, percentiles: [d.percentiles[0], d.percentiles[1]] };
 }
 
 export interface StudyTemplate {
@@ -44,6 +81,8 @@ export interface StudyTemplate {
   questions: Question[];
   readers: string[];
   design: DesignSpec;
+  /** Present only when the template has a `display` section; read it through displayPolicy(). */
+  display?: DisplaySpec;
 }
 
 /** One problem found in a template: always names the file, and the line and key where known. */

@@ -22,6 +22,8 @@ test('a reader scores three items by keyboard, reloads, and resumes at item 4 wi
   await expect(page.getByText('not a medical device', { exact: false })).toBeVisible();
   await page.screenshot({ path: 'test-results/screens/reader-picker.png' });
   await page.getByTestId('reader-R1').click();
+  // Before the first session, the reader confirms the display check.
+  await page.getByTestId('display-check-confirm').click();
 
   await expect(page.getByTestId('progress-text')).toHaveText('Item 1 of 18');
   await expect(page.getByTestId('slice-label')).toHaveText('Slice 5 / 8');
@@ -32,13 +34,13 @@ test('a reader scores three items by keyboard, reloads, and resumes at item 4 wi
   await page.keyboard.press('ArrowLeft');
   await page.keyboard.press('ArrowLeft');
   await expect(page.getByTestId('slice-label')).toHaveText('Slice 4 / 8');
-  // Dragging changes window and level.
+  // Dragging with the right button changes window and level.
   const before = await page.getByText(/^W \d+ · L \d+$/).textContent();
   const box = (await page.getByTestId('viewer').boundingBox())!;
   await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2);
-  await page.mouse.down();
+  await page.mouse.down({ button: 'right' });
   await page.mouse.move(box.x + box.width / 2 - 120, box.y + box.height / 2 + 60, { steps: 6 });
-  await page.mouse.up();
+  await page.mouse.up({ button: 'right' });
   await expect(page.getByText(/^W \d+ · L \d+$/)).not.toHaveText(before!);
   await page.screenshot({ path: 'test-results/screens/reading-room.png' });
 

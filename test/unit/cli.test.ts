@@ -19,10 +19,9 @@ describe('veil command line', () => {
     expect(r.stdout).toContain('not a medical device');
   });
 
-  it('says plainly that unbuilt commands are not built yet, exit 2', async () => {
-    const r = await run(['metrics']);
-    expect(r.code).toBe(2);
-    expect(r.stderr).toContain('not built yet');
+  it('has every command of the design built: none says it is not built yet', async () => {
+    const help = await run(['--help']);
+    expect(help.stdout).not.toContain('not built yet');
   });
 
   it('exits 2 on usage errors', async () => {
@@ -41,7 +40,7 @@ describe('veil command line', () => {
     expect(bad.code).toBe(1);
     const j = JSON.parse(bad.stdout);
     expect(j.ok).toBe(false);
-    expect(j.problems.join('\n')).toContain(join('c1', 'a.npy'));
+    expect(j.problems.map((p: { message: string }) => p.message).join('\n')).toContain(join('c1', 'a.npy'));
   });
 
   it('reports template errors with file and line, exit 1', async () => {

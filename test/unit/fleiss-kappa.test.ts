@@ -1,6 +1,7 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { fleissKappa, fleissKappaFromCounts } from '../../app/stats/fleiss-kappa.ts';
+import { fleissKappa, fleissKappaFromCounts, fleissKappaWeighted } from '../../app/stats/fleiss-kappa.ts';
+import { categoryCounts, ratingMatrix } from '../../app/stats/rating-matrix.ts';
 
 function fixture<T>(name: string): T {
   return JSON.parse(readFileSync(new URL(`../reference/agreement/${name}.json`, import.meta.url), 'utf8')) as T;
@@ -123,5 +124,19 @@ describe('fleissKappa: small cases worked by hand from the formula', () => {
     expect(() => fleissKappa([[1, 2], [1]])).toThrow(/subject 2/);
     expect(() => fleissKappa([[null, 1], [1, 6]], [1, 2, 3, 4, 5])).toThrow(/subject 2 has rating 6/);
     expect(() => fleissKappaFromCounts([[2, 1], [1, 1]])).toThrow(/same number of raters/);
+  });
+});
+
+describe('fleissKappaWeighted: the form the bootstrap uses', () => {
+  it('with every subject once equals the count-matrix kappa; a subject counted twice equals it written twice', () => {
+    // Source: statsmodels fleiss_kappa on the complete rows (fleiss-random.json).
+    const ref = fixture<RatingsFixture>('fleiss-random');
+    const cc = categoryCounts(ratingMatrix(ref.ratings), ref.categories);
+    const ones = new Array<number>(cc.subjects).fill(1);
+    expect(Math.abs(fleissKappaWeighted(cc, ref.raters, ones) - ref.kappa)).toBeLessThan(1e-12);
+    const weights = ones.map((_, i) => (i % 3 === 0 ? 2 : i % 3 === 1 ? 0 : 1));
+    const copied = ref.ratings.flatMap((row, i) => Array.from({ length: weights[i] }, () => row));
+    expect(fleissKappaWeighted(cc, ref.raters, weights)).toBeCloseTo(fleissKappa(copied, ref.categories).kappa, 12);
+    expect(Number.isNaN(fleissKappaWeighted(cc, ref.raters, ones.map(() => 0)))).toBe(true);
   });
 });

@@ -110,8 +110,9 @@ describe('parseTemplate on valid templates', () => {
     expect(parseTemplate(edit({ 7: '    path: shared.npy', 11: 'cases: [p-01]' }), FILE).methods[0].path).toBe('shared.npy');
   });
 
-  it('accepts free-form display and analysis sections', () => {
-    expect(() => parseTemplate(`${BASE.join('\n')}\ndisplay: {window: [0, 1]}\nanalysis: {anything: goes}`, FILE)).not.toThrow();
+  it('accepts a display section (defaults filled) and a free-form analysis section', () => {
+    const t = parseTemplate(`${BASE.join('\n')}\ndisplay: {matching: reference-grid}\nanalysis: {anything: goes}`, FILE);
+    expect(t.display).toEqual({ matching: 'reference-grid', intensity: 'percentile', percentiles: [0, 99.5] });
   });
 
   it('reads the example knee phantom template', () => {
@@ -195,7 +196,7 @@ describe('parseTemplate reports each kind of error with file, line, column and k
       line: 20,
       column: 3,
       key: 'design.sesions',
-      message: "unknown key 'sesions'; allowed: presentation, sessions, washout_days",
+      message: "unknown key 'sesions'; allowed: presentation, sessions, washout_days, revisits",
     });
     expect(onlyIssue(`${BASE.join('\n')}\nreviewers: [R3]`)).toMatchObject({ line: 22, key: 'reviewers' });
   });

@@ -116,3 +116,21 @@ describe('parseTidyCsv', () => {
     expect(() => parseTidyCsv('', 'empty.csv')).toThrow(/^empty\.csv:1: the file is empty/);
   });
 });
+
+describe('parseTidyCsv with the questions\' scales', () => {
+  const csv = 'case,reader,method,question,score\nc1,R1,m,sharpness,5\nc1,R1,m,noise,3\nc2,R1,m,noise,6\n';
+
+  it('names the line of a score outside its question\'s scale', () => {
+    expect(() => parseTidyCsv(csv, 'r.csv', { scales: { sharpness: { points: 5 }, noise: { points: 5 } } })).toThrow(
+      'r.csv:4: column "score": 6 is outside the scale 1..5 of question "noise"',
+    );
+    expect(() => parseTidyCsv(csv, 'r.csv', { points: 4 })).toThrow('r.csv:2: column "score": 5 is outside the scale 1..4 of question "sharpness"');
+    expect(parseTidyCsv(csv, 'r.csv', { points: 6 })).toHaveLength(3);
+  });
+
+  it('names the line of a question the scales do not know', () => {
+    expect(() => parseTidyCsv(csv, 'r.csv', { scales: { sharpness: { points: 5 } } })).toThrow(
+      'r.csv:3: column "question": question "noise" has no scale; known questions: sharpness',
+    );
+  });
+});

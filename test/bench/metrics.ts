@@ -1,0 +1,107 @@
+/**
+ * Image metrics speed: PSNR, SSIM, NRMSE and HFEN of a 64 x 320 x 320 float32 volume pair, against
+ * scikit-image computing SSIM alone (structural_similarity per slice, gaussian_weights=True,
+ * use_sample_covariance=False, data_range given) on the same arrays, in the same run.
+ * Goal: Veil at least twice as fast.
+ *
+ * Two comparisons, each the best of five alternating runs:
+ * - whole process: `veil metrics --json` (Node start, tsx, both .npy files read, all four metrics)
+ *   against `/usr/bin/python3` importing scikit-image, loading both arrays and computing SSIM;
+ * - in process: Veil reading both files and computing the four metrics, against the same Python
+ *   process's time for np.load and SSIM (interpreter start and imports left out on both sides).
+ * The arrays (an invented phantom with noise; the test blurred and noisier) are written by NumPy
+ * into a temporary folder at bench time. Veil's SSIM is checked against scikit-image's on them.
+ */
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { loadVolume } from '../../app/images/load.ts';
+import { compareVolumes } from '../../app/metrics/compare-volumes.ts';
+import { fmt } from './stats.ts';
+
+const REPO = join(import.meta.dirname, '..', '..');
+const PYTHON = '/usr/bin/python3';
+const RUNS = 5;
+
+const MAKE_ARRAYS = `
+import sys, numpy as np
+from scipy import ndimage
+rng = np.random.default_rng(1)
+s, r, c = 64, 320, 320
+y, x = np.mgrid[0:r, 0:c]
+body = ((((y - 160) / 130.0) ** 2 + ((x - 160) / 115.0) ** 2) <= 1) * 100.0
+inner = ((((y - 140) / 40.0) ** 2 + ((x - 180) / 30.0) ** 2) <= 1) * 40.0
+ref = np.stack([body + inner * (1 + 0.01 * k) for k in range(s)])
+ref = np.abs(ref + 3 * (rng.standard_normal(ref.shape) + 1j * rng.standard_normal(ref.shape))).astype(np.float32)
+test = (ndimage.gaussian_filter(ref, (0, 1, 1)) + rng.normal(0, 4, ref.shape)).astype(np.float32)
+np.save(sys.argv[1], ref)
+np.save(sys.argv[2], test)
+`;
+
+const SSIM_ALONE = `
+import sys, time, json
+t0 = time.perf_counter()
+import numpy as np
+from skimage.metrics import structural_similarity
+t1 = time.perf_counter()
+ref = np.load(sys.argv[1]); test = np.load(sys.argv[2])
+L = float(ref.max() - ref.min())
+ssim = float(np.mean([structural_similarity(ref[k], test[k], gaussian_weights=True, use_sample_covariance=False,
+                                            data_range=L) for k in range(ref.shape[0])]))
+t2 = time.perf_counter()
+print(json.dumps({"ssim": ssim, "imports_ms": (t1 - t0) * 1000, "work_ms": (t2 - t1) * 1000}))
+`;
+
+function timed(cmd: string, args: string[]): { ms: number; stdout: string } {
+  const t0 = performance.now();
+  const r = spawnSync(cmd, args, { encoding: 'utf8', maxBuffer: 1 << 24 });
+  const ms = performance.now() - t0;
+  if (r.status !== 0) throw new Error(`${cmd} ${args.join(' ')} failed: ${r.stderr || r.error}`);
+  return { ms, stdout: r.stdout };
+}
+
+export async function bench(): Promise<string[]> {
+  const dir = mkdtempSync(join(tmpdir(), 'veil-bench-metrics-'));
+  try {
+    const ref = join(dir, 'reference.npy');
+    const test = join(dir, 'test.npy');
+    const script = join(dir, 'ssim_alone.py');
+    writeFileSync(script, SSIM_ALONE);
+    const made = spawnSync(PYTHON, ['-c', MAKE_ARRAYS, ref, test], { encoding: 'utf8' });
+    if (made.status !== 0) return [`skipped: ${PYTHON} with NumPy and SciPy is needed to make the arrays (${made.stderr || made.error})`];
+
+    const veilWhole: number[] = [];
+    const veilInner: number[] = [];
+    const pyWhole: number[] = [];
+    const pyInner: number[] = [];
+    let veilSsim = NaN;
+    let pySsim = NaN;
+    for (let run = 0; run < RUNS; run++) {
+      const v = timed(process.execPath, [join(REPO, 'bin', 'veil.mjs'), 'metrics', '--reference', ref, '--test', test, '--json']);
+      veilWhole.push(v.ms);
+      veilSsim = (JSON.parse(v.stdout) as { ssim: number }).ssim;
+
+      const t0 = performance.now();
+      const r = compareVolumes(await loadVolume(ref), await loadVolume(test));
+      veilInner.push(performance.now() - t0);
+      if (Math.abs(r.ssim - veilSsim) > 1e-12) throw new Error('in-process and command-line SSIM differ');
+
+      const p = timed(PYTHON, [script, ref, test]);
+      pyWhole.push(p.ms);
+      const pj = JSON.parse(p.stdout) as { ssim: number; work_ms: number };
+      pyInner.push(pj.work_ms);
+      pySsim = pj.ssim;
+    }
+    const best = (xs: number[]): number => Math.min(...xs);
+    const ratio = (a: number[], b: number[]): string => `${(best(b) / best(a)).toFixed(2)}x`;
+    return [
+      'metrics, 64 x 320 x 320 float32 pair (goal: Veil at least 2x as fast as scikit-image SSIM alone)',
+      `  whole process: veil metrics (PSNR, SSIM, NRMSE, HFEN) ${fmt(best(veilWhole))}  vs  python3 + scikit-image SSIM alone ${fmt(best(pyWhole))}  -> Veil ${ratio(veilWhole, pyWhole)} as fast`,
+      `  in process:    read + four metrics ${fmt(best(veilInner))}  vs  np.load + SSIM alone ${fmt(best(pyInner))}  -> Veil ${ratio(veilInner, pyInner)} as fast`,
+      `  SSIM agrees with scikit-image to ${Math.abs(veilSsim - pySsim).toExponential(1)} (Veil ${veilSsim.toFixed(8)}, scikit-image ${pySsim.toFixed(8)})`,
+    ];
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
