@@ -1,0 +1,89 @@
+/**
+ * De-identification leak test after DICOM PS3.15 Annex E (Basic Application Level
+ * Confidentiality Profile). The sources (test/reference/annex-e, written by pydicom) carry a
+ * distinctive value in every text-bearing attribute of the DICOM data dictionary, a superset of
+ * the text attributes of Table E.1-1, plus private tags, free text and sequences. We build kits
+ * from them, read in the reading room, export a results bundle, and scan every byte of every file
+ * that can leave the site (inflating gzip content) and every path: zero hits.
+ */
+import { mkdtempSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join, relative } from 'node:path';
+import { gunzipSync } from 'node:zlib';
+import { describe, expect, it } from 'vitest';
+import { createApi } from '../../app/api.ts';
+import { buildStudy } from '../../app/blinding/build.ts';
+import { loadTemplate } from '../../app/study/parse-template.ts';
+
+const FIXTURE = join(import.meta.dirname, '..', 'reference', 'annex-e');
+const planted = (JSON.parse(readFileSync(join(FIXTURE, 'planted.json'), 'utf8')) as { planted: { keyword: string; value: string }[] }).planted;
+
+function allFiles(dir: string): string[] {
+  return readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? allFiles(join(dir, e.name)) : [join(dir, e.name)]));
+}
+
+function contents(file: string): Buffer[] {
+  const bytes = readFileSync(file);
+  const out = [bytes];
+  if (bytes[0] === 0x1f && bytes[1] === 0x8b) out.push(gunzipSync(bytes));
+  return out;
+}
+
+describe('de-identification (DICOM PS3.15 Annex E)', () => {
+  it('plants enough values to be meaningful', () => {
+    expect(planted.length).toBeGreaterThan(1500);
+    for (const k of ['PatientName', 'PatientID', 'PatientBirthDate', 'AccessionNumber', 'StudyInstanceUID', 'SeriesInstanceUID',
+      'InstitutionName', 'ReferringPhysicianName', 'StationName', 'DeviceSerialNumber', 'StudyDescription', 'SeriesDescription',
+      'ProtocolName', 'ImageComments', 'StudyDate', 'AcquisitionTime', 'OperatorsName', 'FrameOfReferenceUID']) {
+      expect(planted.some((p) => p.keyword === k), k).toBe(true);
+    }
+    // The sources really carry them: the scan below would find them there.
+    const source = readFileSync(join(FIXTURE, 'sources', 'case-1', 'alpha', 'slice-1.dcm'));
+    expect(planted.filter((p) => source.includes(Buffer.from(p.value))).length).toBeGreaterThan(1400);
+  });
+
+  it('no planted value reaches any kit file, path or results bundle', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'veil-annex-e-'));
+    const template = join(dir, 'leak.study.yaml');
+    writeFileSync(template, `title: Leak test
+seed: 11
+sources: ${JSON.stringify(join(FIXTURE, 'sources'))}
+methods:
+  - {id: m-alpha, label: Alpha, path: "{case}/alpha"}
+  - {id: m-beta, label: Beta, path: "{case}/beta"}
+cases: auto
+questions:
+  - {id: q, text: Quality?, scale: {points: 5, low: Poor, high: Good}}
+readers: [R1, R2]
+`);
+    const out = join(dir, 'study');
+    await buildStudy(loadTemplate(template), out);
+    const api = createApi(out);
+    try {
+      const kit = await api.openKit({ reader: 'R1' });
+      await api.itemPixels({ reader: 'R1', itemId: kit.items[0].id });
+      await api.submitAnswer({ reader: 'R1', itemId: kit.items[0].id, scores: { q: 4 }, seconds: 2 });
+      await api.exportResults({ reader: 'R1' });
+    } finally {
+      api.close();
+    }
+    const kitFiles = allFiles(join(out, 'kits'));
+    expect(kitFiles.length).toBeGreaterThan(8);
+    const hits: string[] = [];
+    for (const f of kitFiles) {
+      const path = relative(out, f);
+      for (const body of contents(f)) {
+        for (const p of planted) {
+          if (body.includes(Buffer.from(p.value)) || path.includes(p.value)) hits.push(`${p.keyword} (${p.value}) in ${path}`);
+        }
+      }
+    }
+    expect(hits).toEqual([]);
+    // And nothing that names the method or the sources.
+    for (const f of kitFiles) {
+      const text = readFileSync(f).toString('latin1');
+      for (const secret of ['m-alpha', 'm-beta', 'Alpha', 'Beta', FIXTURE, 'slice-1.dcm']) expect(text.includes(secret), `${secret} in ${f}`).toBe(false);
+      expect(statSync(f).isFile()).toBe(true);
+    }
+  });
+});
