@@ -30,7 +30,7 @@ import { streamFor } from '../blinding/streams.ts';
 import type { TidyRow } from '../report/tidy-csv.ts';
 import { caseBootstrap, percentileInterval } from '../stats/bootstrap.ts';
 import type { VolumeMetrics } from './compare-volumes.ts';
-import { kendallTauB, spearmanRho } from './rank-correlation.ts';
+import { RankPairs } from './rank-correlation.ts';
 
 export interface MetricSpec {
   /** Key in the metric table. */
@@ -169,36 +169,60 @@ function caseConcordance(metric: Float64Array, scores: Float64Array, sign: numbe
   return [credit, pairs];
 }
 
-/** ρ, τ_b and concordance of one metric against one score set, cases counted `weights[c]` times. */
-function tracking(cases: CaseItems[], weights: ArrayLike<number>, scoresOf: (c: CaseItems) => Float64Array, m: number, sign: number): { items: number; rho: number; tau: number; conc: number; concCases: number; pairs: number } {
+/** One metric against one score set, prepared once for the point estimate and every resample. */
+interface Track {
+  /** (metric, score) of the items that have both. */
+  pairs: RankPairs;
+  /** Case index of each of those items. */
+  caseOf: Int32Array;
+  /** Scratch: the multiplicity of each item in a resample. */
+  weights: Float64Array;
+  /** Per case: concordant credit and ordered pairs (they do not change between resamples). */
+  credit: Float64Array;
+  ordered: Float64Array;
+}
+
+function prepareTrack(cases: CaseItems[], scoresOf: (c: CaseItems) => Float64Array, m: number, sign: number): Track {
   const xs: number[] = [];
   const ys: number[] = [];
+  const caseOf: number[] = [];
+  const credit = new Float64Array(cases.length);
+  const ordered = new Float64Array(cases.length);
+  cases.forEach((c, ci) => {
+    const scores = scoresOf(c);
+    const metric = c.metrics[m];
+    for (let i = 0; i < scores.length; i++) {
+      if (Number.isNaN(scores[i]) || Number.isNaN(metric[i])) continue;
+      xs.push(metric[i]);
+      ys.push(scores[i]);
+      caseOf.push(ci);
+    }
+    [credit[ci], ordered[ci]] = caseConcordance(metric, scores, sign);
+  });
+  return { pairs: new RankPairs(xs, ys), caseOf: Int32Array.from(caseOf), weights: new Float64Array(xs.length), credit, ordered };
+}
+
+/** ρ, τ_b and concordance of a prepared track, case c counted `caseWeights[c]` times. */
+function evaluateTrack(t: Track, caseWeights: ArrayLike<number>): { items: number; rho: number; tau: number; conc: number; concCases: number; pairs: number } {
+  let items = 0;
+  for (let i = 0; i < t.weights.length; i++) {
+    t.weights[i] = caseWeights[t.caseOf[i]];
+    items += t.weights[i];
+  }
   let shareSum = 0;
   let shareCases = 0;
   let pairs = 0;
-  for (let c = 0; c < cases.length; c++) {
-    const w = weights[c];
-    if (w === 0) continue;
-    const scores = scoresOf(cases[c]);
-    const metric = cases[c].metrics[m];
-    for (let i = 0; i < scores.length; i++) {
-      if (Number.isNaN(scores[i]) || Number.isNaN(metric[i])) continue;
-      for (let k = 0; k < w; k++) {
-        xs.push(metric[i]);
-        ys.push(scores[i]);
-      }
-    }
-    const [credit, n] = caseConcordance(metric, scores, sign);
-    if (n > 0) {
-      shareSum += (w * credit) / n;
-      shareCases += w;
-      pairs += w * n;
-    }
+  for (let c = 0; c < t.credit.length; c++) {
+    const w = caseWeights[c];
+    if (w === 0 || t.ordered[c] === 0) continue;
+    shareSum += (w * t.credit[c]) / t.ordered[c];
+    shareCases += w;
+    pairs += w * t.ordered[c];
   }
   return {
-    items: xs.length,
-    rho: spearmanRho(xs, ys),
-    tau: kendallTauB(xs, ys),
+    items,
+    rho: t.pairs.spearman(t.weights),
+    tau: t.pairs.kendallTauB(t.weights),
     conc: shareCases > 0 ? shareSum / shareCases : Number.NaN,
     concCases: shareCases,
     pairs,
@@ -257,14 +281,15 @@ export function metricScoreLinkage(ratings: readonly TidyRow[], table: readonly 
       rankBy === 'concordance' ? t.conc : sign * (rankBy === 'kendall' ? t.tau : t.rho);
 
     // The statistics of one (re)sample: per metric and score set ρ, τ, concordance; then per metric its rank.
+    const tracks = specs.map((s, m) => scoreSets.map((scoresOf) => prepareTrack(cases, scoresOf, m, s.higherIsBetter ? 1 : -1)));
     const perSet = 3;
     const width = specs.length * scoreSets.length * perSet + specs.length;
     const evaluate = (weights: ArrayLike<number>, into: Float64Array): void => {
       const key: number[] = [];
       specs.forEach((s, m) => {
         const sign = s.higherIsBetter ? 1 : -1;
-        scoreSets.forEach((scoresOf, k) => {
-          const t = tracking(cases, weights, scoresOf, m, sign);
+        scoreSets.forEach((_, k) => {
+          const t = evaluateTrack(tracks[m][k], weights);
           const at = (m * scoreSets.length + k) * perSet;
           into[at] = t.rho;
           into[at + 1] = t.tau;
@@ -288,9 +313,8 @@ export function metricScoreLinkage(ratings: readonly TidyRow[], table: readonly 
     });
 
     const metrics: MetricLinkage[] = specs.map((s, m) => {
-      const sign = s.higherIsBetter ? 1 : -1;
-      const stats = scoreSets.map((scoresOf, k): TrackingStatistics => {
-        const t = tracking(cases, ones, scoresOf, m, sign);
+      const stats = scoreSets.map((_, k): TrackingStatistics => {
+        const t = evaluateTrack(tracks[m][k], ones);
         const at = (m * scoreSets.length + k) * perSet;
         return {
           items: t.items,
