@@ -9,6 +9,7 @@ export const CHROMIUM_ARGS = [
 
 export default defineConfig({
   testDir: 'test/e2e',
+  globalSetup: './test/e2e/global-setup.ts',
   workers: 1,
   timeout: 60_000,
   reporter: [['list']],

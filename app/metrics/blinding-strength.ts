@@ -82,37 +82,65 @@ const compare = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
 /**
  * Leave-one-case-out nearest-centroid accuracy. `x[i]` holds item i's features, `label[i]` its
  * method index (0..methods-1), `caseOf[i]` its case index.
+ *
+ * Every fold's training statistics are the totals minus the held-out case's share, so the whole
+ * estimate costs O(items × methods × features). Standardizing by the training standard deviation
+ * sd_k and comparing with standardized centroids is the same as the distance
+ * Σ_k (x_k − centroid_k)² / sd_k², which is what is computed. Values are centred on the overall
+ * mean first, which keeps the one-pass variances accurate.
  */
 export function leaveOneCaseOutAccuracy(x: number[][], label: ArrayLike<number>, caseOf: ArrayLike<number>, cases: number, methods: number): number {
   const n = x.length;
-  const f = n > 0 ? x[0].length : 0;
-  let credit = 0;
-  const mean = new Float64Array(f);
-  const sd = new Float64Array(f);
-  const centroid = Array.from({ length: methods }, () => new Float64Array(f));
+  if (n === 0) return Number.NaN;
+  const f = x[0].length;
+  const centre = new Float64Array(f);
+  for (const row of x) for (let k = 0; k < f; k++) centre[k] += row[k] / n;
+  const v = x.map((row) => Float64Array.from(row, (value, k) => value - centre[k]));
+  // Totals, and each case's part: Σv, Σv² per feature; Σv and count per method.
+  const sum = new Float64Array(f);
+  const squares = new Float64Array(f);
+  const methodSum = new Float64Array(methods * f);
+  const methodCount = new Float64Array(methods);
+  const caseSum = new Float64Array(cases * f);
+  const caseSquares = new Float64Array(cases * f);
+  const caseMethodSum = new Float64Array(cases * methods * f);
+  const caseMethodCount = new Float64Array(cases * methods);
+  const caseCount = new Float64Array(cases);
+  for (let i = 0; i < n; i++) {
+    const c = caseOf[i];
+    const m = label[i];
+    caseCount[c]++;
+    methodCount[m]++;
+    caseMethodCount[c * methods + m]++;
+    for (let k = 0; k < f; k++) {
+      const value = v[i][k];
+      sum[k] += value;
+      squares[k] += value * value;
+      methodSum[m * f + k] += value;
+      caseSum[c * f + k] += value;
+      caseSquares[c * f + k] += value * value;
+      caseMethodSum[(c * methods + m) * f + k] += value;
+    }
+  }
+  const inverseVariance = new Float64Array(f);
+  const centroid = new Float64Array(methods * f);
   const members = new Float64Array(methods);
+  let credit = 0;
   for (let held = 0; held < cases; held++) {
-    mean.fill(0);
-    sd.fill(0);
-    members.fill(0);
-    for (const c of centroid) c.fill(0);
-    let train = 0;
-    for (let i = 0; i < n; i++) {
-      if (caseOf[i] === held) continue;
-      train++;
-      for (let k = 0; k < f; k++) mean[k] += x[i][k];
+    const train = n - caseCount[held];
+    if (train === 0 || caseCount[held] === 0) continue;
+    for (let k = 0; k < f; k++) {
+      const mean = (sum[k] - caseSum[held * f + k]) / train;
+      const meanSquare = (squares[k] - caseSquares[held * f + k]) / train;
+      const variance = meanSquare - mean * mean;
+      // A feature constant over the training cases is left out (rounding may leave a trace of variance).
+      inverseVariance[k] = variance > 1e-12 * meanSquare ? 1 / variance : 0;
     }
-    if (train === 0) continue;
-    for (let k = 0; k < f; k++) mean[k] /= train;
-    for (let i = 0; i < n; i++) {
-      if (caseOf[i] === held) continue;
-      for (let k = 0; k < f; k++) sd[k] += (x[i][k] - mean[k]) ** 2;
-      members[label[i]]++;
-      for (let k = 0; k < f; k++) centroid[label[i]][k] += x[i][k];
-    }
-    for (let k = 0; k < f; k++) sd[k] = Math.sqrt(sd[k] / train);
     for (let m = 0; m < methods; m++) {
-      for (let k = 0; k < f; k++) centroid[m][k] = members[m] > 0 && sd[k] > 0 ? (centroid[m][k] / members[m] - mean[k]) / sd[k] : 0;
+      members[m] = methodCount[m] - caseMethodCount[held * methods + m];
+      for (let k = 0; k < f; k++) {
+        centroid[m * f + k] = members[m] > 0 ? (methodSum[m * f + k] - caseMethodSum[(held * methods + m) * f + k]) / members[m] : 0;
+      }
     }
     for (let i = 0; i < n; i++) {
       if (caseOf[i] !== held) continue;
@@ -122,11 +150,7 @@ export function leaveOneCaseOutAccuracy(x: number[][], label: ArrayLike<number>,
       for (let m = 0; m < methods; m++) {
         if (members[m] === 0) continue;
         let d = 0;
-        for (let k = 0; k < f; k++) {
-          if (sd[k] === 0) continue;
-          const z = (x[i][k] - mean[k]) / sd[k] - centroid[m][k];
-          d += z * z;
-        }
+        for (let k = 0; k < f; k++) d += (v[i][k] - centroid[m * f + k]) ** 2 * inverseVariance[k];
         if (d < best) {
           best = d;
           tied = 1;
@@ -139,7 +163,7 @@ export function leaveOneCaseOutAccuracy(x: number[][], label: ArrayLike<number>,
       if (hit) credit += 1 / tied;
     }
   }
-  return n > 0 ? credit / n : Number.NaN;
+  return credit / n;
 }
 
 /**

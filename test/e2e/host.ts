@@ -1,14 +1,20 @@
 /** Starts `veil serve` on a fresh demo study as a real child process, as a user would. */
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
-import { mkdtempSync } from 'node:fs';
+import { cpSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 
 export const REPO = join(import.meta.dirname, '..', '..');
 const VEIL = join(REPO, 'bin', 'veil.mjs');
 
+/** A fresh copy of the demo study that global-setup.ts built once for the run (or a new demo). */
 export function makeDemo(): string {
   const dir = mkdtempSync(join(tmpdir(), 'veil-e2e-'));
+  const built = process.env.VEIL_E2E_DEMO;
+  if (built) {
+    cpSync(built, dir, { recursive: true });
+    return dir;
+  }
   const r = spawnSync(process.execPath, [VEIL, 'demo', '--out', dir], { encoding: 'utf8' });
   if (r.status !== 0) throw new Error(`veil demo failed: ${r.stderr}`);
   return dir;

@@ -96,6 +96,12 @@ describe('leave-one-case-out nearest centroid against scikit-learn', () => {
     expect(leaveOneCaseOutAccuracy(x, [0, 1, 0, 1], [0, 0, 1, 1], 2, 2)).toBe(0.5);
   });
 
+  it('leaves out a statistic that is constant over the training cases, even if the held-out case differs', () => {
+    // Feature 0 tells the methods apart; feature 1 is 0.3 everywhere except in case 2.
+    const x = [[0.1, 0.3], [0.9, 0.3], [0.12, 0.3], [0.88, 0.3], [0.11, 7.7], [0.91, 7.7]];
+    expect(leaveOneCaseOutAccuracy(x, [0, 1, 0, 1, 0, 1], [0, 0, 1, 1, 2, 2], 3, 2)).toBe(1);
+  });
+
   it('repeats exactly with the same seed', () => {
     const c = fx.classification[0];
     expect(blindingStrength(c.items, { seed: 7, permutations: 20 })).toEqual(blindingStrength(c.items, { seed: 7, permutations: 20 }));

@@ -162,7 +162,8 @@ class ReadingStore {
     view.reset(item.views, keys, kit.presets);
     view.draw();
     this.imageState = 'ready';
-    this.prefetchAround(index);
+    // Fetch the neighbours once this item is on screen, so that they never delay its first frame.
+    requestAnimationFrame(() => setTimeout(() => { if (token === this.showToken) this.prefetchAround(index); }, 0));
   }
 
   /** The next item (so it is on screen at once after saving) and the previous one (for going back). */
