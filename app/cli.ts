@@ -13,6 +13,7 @@ import { loadVolume } from './images/load.ts';
 import { buildStudy, BuildError, type BuildProgress, type BuildSummary } from './blinding/build.ts';
 import { writeDemo } from './demo/demo.ts';
 import { collectBundles } from './blinding/collect.ts';
+import { formatBlindingStrength } from './metrics/blinding-strength.ts';
 import { workspacePath } from './store/workspace.ts';
 import { parseTidyCsv } from './report/tidy-csv.ts';
 import { agreementReport, DEFAULT_BOOTSTRAP_RESAMPLES, DEFAULT_BOOTSTRAP_SEED } from './stats/agreement.ts';
@@ -57,6 +58,9 @@ function describeBuild(s: BuildSummary): string {
       (Number.isFinite(s.design.minSameCaseGap) ? `; items of one case at least ${s.design.minSameCaseGap} apart` : '; each case at most once a session') + '.',
     `Workspace (coordinator only, holds the key): ${s.workspace}`,
     ...s.kits.map((k) => `Kit for ${k.reader}: ${k.path} (${k.items} items; per session ${k.perSession.join(' / ')})`),
+    s.metrics ? `Image metrics against the reference for ${s.metrics} items (stored in the workspace only).` : 'No image metrics (no reference).',
+    ...s.metricNotes,
+    s.blinding ? formatBlindingStrength(s.blinding) : 'Blinding-strength check: needs at least two cases and two methods.',
   ];
   return lines.join('\n') + '\n';
 }

@@ -13,7 +13,9 @@ import { resampleInPlane } from '../images/resample.ts';
 import { displayPolicy, type DisplaySpec } from '../study/template.ts';
 import { writeNpy } from '../images/npy.ts';
 import type { Volume } from '../images/volume.ts';
-import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeSeries, writeStudy } from '../store/workspace.ts';
+import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeMetric, writeSeries, writeStudy } from '../store/workspace.ts';
+import { StudyMetrics } from '../metrics/study-metrics.ts';
+import type { BlindingStrength } from '../metrics/blinding-strength.ts';
 import { audit } from '../store/open.ts';
 import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledItem } from './design.ts';
 import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from './kit-integrity.ts';
@@ -43,6 +45,12 @@ export interface BuildSummary {
   sessions: number;
   itemsPerReader: number;
   design: DesignSummary;
+  /** Items with metrics against their case's reference. */
+  metrics: number;
+  /** Notes on items without metrics (no common grid). */
+  metricNotes: string[];
+  /** Could readers tell the methods apart from simple image statistics? Null with fewer than two cases. */
+  blinding: BlindingStrength | null;
   workspace: string;
   kits: { reader: string; kitId: string; path: string; items: number; perSession: number[] }[];
 }
@@ -119,14 +127,18 @@ export async function buildStudy(
     })();
 
     const display = displayPolicy(template);
+    const metrics = new StudyMetrics({ percentiles: display.percentiles, includeScale: display.intensity === 'none' });
+    let metricCount = 0;
     for (const c of resolution.cases) {
       let grid: Volume | null = null;
       let anchor: DisplayAnchor | null = null;
+      metrics.startCase(null);
       if (c.reference) {
         const ref = await loadVolume(c.reference);
         grid = ref;
         anchor = { bounds: percentileWindow(ref.pixels, display.percentiles), pixels: display.intensity === 'match-reference' ? ref.pixels : null };
         seriesIds.set(`${c.caseId}\u0000`, writeSeries(ws.db, c.caseId, null, ref));
+        metrics.startCase(ref);
         onProgress?.({ done: ++done, total, what: `case ${c.caseId}: reference` });
       }
       for (const methodId of methodIds) {
@@ -140,6 +152,8 @@ export async function buildStudy(
         // The display policy (design.md): the common grid first, then the intensity mapping.
         const v = display.matching === 'reference-grid' ? resampleInPlane(source, grid.rows, grid.columns) : source;
         anchor ??= { bounds: percentileWindow(v.pixels, display.percentiles), pixels: null };
+        const m = metrics.addMethod(c.caseId, methodId, v);
+        if (m) { writeMetric(ws.db, c.caseId, methodId, m.row.values, m.detail); metricCount++; }
         const shown = toDisplayUint16(v.pixels, displayMapFor(display.intensity, display.percentiles, v.pixels, anchor));
         const bytes = writeNpy(shown.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
         const sha256 = sha256Hex(bytes);
@@ -156,6 +170,8 @@ export async function buildStudy(
     }
 
     await drainWrites(0);
+    const blinding = metrics.blinding(template.seed);
+    ws.db.prepare('UPDATE study SET blinding = ? WHERE id = 1').run(blinding ? JSON.stringify(blinding) : null);
     const createdAt = new Date().toISOString();
     const kits: BuildSummary['kits'] = [];
     ws.db.transaction(() => {
@@ -193,7 +209,8 @@ export async function buildStudy(
     return {
       title: template.title, seed: template.seed, generator: GENERATOR_NAME, cases: caseIds.length,
       methods: methodIds.length, readers: template.readers.length, sessions: template.design.sessions,
-      itemsPerReader: schedule.length / template.readers.length, design, workspace: join(out, WORKSPACE_FILE), kits,
+      itemsPerReader: schedule.length / template.readers.length, design,
+      metrics: metricCount, metricNotes: metrics.skipped, blinding, workspace: join(out, WORKSPACE_FILE), kits,
     };
   } catch (e) {
     ws.close();

@@ -13,7 +13,7 @@
  */
 import type Database from 'better-sqlite3';
 import { LineCounter, parseDocument, isMap, type Node } from 'yaml';
-import { openWorkspace, unblindedRatings, workspacePath, type UnblindedRating } from '../store/workspace.ts';
+import { openWorkspace, readMetrics, unblindedRatings, workspacePath, type UnblindedRating } from '../store/workspace.ts';
 import type { DesignSummary } from '../blinding/design.ts';
 import type { MetricRow } from '../metrics/linkage.ts';
 import type { BlindingStrength } from '../metrics/blinding-strength.ts';
@@ -93,13 +93,15 @@ export function readStudyInputs(db: Database.Database): StudyInputs {
   const cases = (db.prepare('SELECT COUNT(*) AS n FROM study_case').get() as { n: number }).n;
   const summary = study.design ? (JSON.parse(study.design) as DesignSummary) : null;
   const templateDoc = parseDocument(study.template_text).toJSON() as { design?: { sessions?: number; washout_days?: number } } | null;
+  const hasMetrics = (db.prepare('SELECT COUNT(*) AS n FROM metric').get() as { n: number }).n > 0;
+  const blindingJson = (db.prepare('SELECT blinding FROM study WHERE id = 1').get() as { blinding: string | null }).blinding;
   const settings = analysisSettings(study.template_text, study.template_path, methods.map((m) => m.id), Math.max(2, ...questions.map((q) => q.points)));
   return {
     ratings: unblindedRatings(db),
     seed: study.seed,
     settings,
-    metrics: null,
-    blinding: null,
+    metrics: hasMetrics ? readMetrics(db) : null,
+    blinding: blindingJson ? (JSON.parse(blindingJson) as BlindingStrength) : null,
     design: {
       title: study.title, seed: study.seed, generator: summary?.generator ?? study.generator, presentation: summary?.presentation ?? null,
       sessions: templateDoc?.design?.sessions ?? null, washoutDays: templateDoc?.design?.washout_days ?? null,

@@ -134,6 +134,23 @@ CREATE TABLE bundle (
 `,
 });
 
+workspaceMigrations.push({
+  version: 3,
+  description: 'image metrics per item against the reference, and the blinding-strength check',
+  sql: `
+-- One row per (case, method) with a reference: PSNR, SSIM, NRMSE, HFEN (and masked values) as
+-- metricRow() gives them, and the full result with its conventions. Coordinator side only.
+CREATE TABLE metric (
+  case_id TEXT NOT NULL REFERENCES study_case(id),
+  method_id TEXT NOT NULL REFERENCES method(id),
+  "values" TEXT NOT NULL,
+  detail TEXT NOT NULL,
+  PRIMARY KEY (case_id, method_id)
+);
+ALTER TABLE study ADD COLUMN blinding TEXT;
+`,
+});
+
 export const readerMigrations: Migration[] = [
   {
     version: 1,

@@ -40,6 +40,18 @@ export function writeSeries(db: Database.Database, caseId: string, methodId: str
   return Number(res.lastInsertRowid);
 }
 
+/** Metric values of one item (∞ and NaN stored as null). */
+export function writeMetric(db: Database.Database, caseId: string, methodId: string, values: Record<string, number | null | undefined>, detail: Record<string, unknown>): void {
+  const finite = Object.fromEntries(Object.entries(values).map(([k, v]) => [k, v != null && Number.isFinite(v) ? v : null]));
+  db.prepare('INSERT INTO metric (case_id, method_id, "values", detail) VALUES (?, ?, ?, ?)').run(caseId, methodId, JSON.stringify(finite), JSON.stringify(detail));
+}
+
+export function readMetrics(db: Database.Database): { case: string; method: string; values: Record<string, number | null> }[] {
+  return (db.prepare(`SELECT m.case_id AS c, m.method_id AS me, m."values" AS v FROM metric m
+      JOIN study_case sc ON sc.id = m.case_id JOIN method mt ON mt.id = m.method_id ORDER BY sc.position, mt.position`).all() as { c: string; me: string; v: string }[])
+    .map((r) => ({ case: r.c, method: r.me, values: JSON.parse(r.v) as Record<string, number | null> }));
+}
+
 export function writeKit(db: Database.Database, reader: string, kitId: string, path: string, bundleKey: string, publicKey: string): void {
   db.prepare('INSERT INTO kit (reader_code, kit_id, path, created_at, bundle_key, public_key) VALUES (?, ?, ?, ?, ?, ?)')
     .run(reader, kitId, path, new Date().toISOString(), bundleKey, publicKey);

@@ -187,7 +187,9 @@ test.describe('a two-session kit', () => {
       expect((db.prepare('SELECT session FROM session_end ORDER BY session').all() as { session: number }[]).map((r) => r.session)).toEqual([1, 2]);
       expect(db.prepare('SELECT seen FROM display_check').all()).toEqual([{ seen: 1 }]);
       const seconds = (db.prepare('SELECT seconds FROM submission').all() as { seconds: number }[]).map((r) => r.seconds);
-      expect(seconds.every((s) => s > 0 && s < 120)).toBe(true);
+      // Active seconds: the first item took a while (key map, zoom, comment); quick ones may round to 0.
+      expect(seconds.every((s) => s >= 0 && s < 120)).toBe(true);
+      expect(seconds[0]).toBeGreaterThan(0.5);
       expect(db.pragma('integrity_check', { simple: true })).toBe('ok');
     } finally {
       db.close();
