@@ -16,18 +16,27 @@
  */
 export const DISPLAY_MAX = 4000;
 
-export function percentile(values: Float32Array, p: number, maxSamples = 200_000): number {
+/** The finite values of a regular subsample of at most `maxSamples`, sorted ascending. */
+export function sortedSample(values: Float32Array, maxSamples = 200_000): Float32Array {
   const step = Math.max(1, Math.floor(values.length / maxSamples));
   const buffer = new Float32Array(Math.ceil(values.length / step));
   let n = 0;
   for (let i = 0; i < values.length; i += step) if (Number.isFinite(values[i])) buffer[n++] = values[i];
-  if (n === 0) return 0;
   // A typed array sorts numerically in native code, far faster than an array with a comparator.
-  const sample = buffer.subarray(0, n).sort();
+  return buffer.subarray(0, n).sort();
+}
+
+/** The p-th percentile (linear interpolation between closest ranks) of values already sorted. */
+export function quantileSorted(sample: Float32Array, p: number): number {
+  if (sample.length === 0) return 0;
   const pos = (p / 100) * (sample.length - 1);
   const lo = Math.floor(pos);
   const hi = Math.min(sample.length - 1, lo + 1);
   return sample[lo] + (sample[hi] - sample[lo]) * (pos - lo);
+}
+
+export function percentile(values: Float32Array, p: number, maxSamples = 200_000): number {
+  return quantileSorted(sortedSample(values, maxSamples), p);
 }
 
 /** What a display image is made with: normalization (slope, intercept), then the window bounds low and high. */
@@ -40,8 +49,13 @@ export interface DisplayMap {
 
 /** The [low, high] percentiles of an image; high is kept above low so that the window has a width. */
 export function percentileWindow(pixels: Float32Array, [pLow, pHigh]: readonly [number, number]): [number, number] {
-  const low = percentile(pixels, pLow);
-  const high = percentile(pixels, pHigh);
+  return windowOfSorted(sortedSample(pixels), [pLow, pHigh]);
+}
+
+/** percentileWindow of values already sorted. */
+export function windowOfSorted(sample: Float32Array, [pLow, pHigh]: readonly [number, number]): [number, number] {
+  const low = quantileSorted(sample, pLow);
+  const high = quantileSorted(sample, pHigh);
   return [low, high > low ? high : low + 1];
 }
 

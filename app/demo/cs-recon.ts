@@ -17,8 +17,8 @@ import { applyMask, type LineMask } from './undersampling.ts';
 
 export interface FistaOptions { lambda: number; iterations: number; levels: number }
 
-function shift(img: ComplexImage, rows: number, columns: number, dy: number, dx: number): ComplexImage {
-  const out = new Float64Array(img.length);
+/** out = img circularly shifted by (dy, dx). */
+function shiftInto(img: ComplexImage, out: ComplexImage, rows: number, columns: number, dy: number, dx: number): void {
   for (let r = 0; r < rows; r++) {
     const rr = (r + dy + rows) % rows;
     for (let c = 0; c < columns; c++) {
@@ -27,57 +27,66 @@ function shift(img: ComplexImage, rows: number, columns: number, dy: number, dx:
       out[(rr * columns + cc) * 2 + 1] = img[(r * columns + c) * 2 + 1];
     }
   }
-  return out;
 }
 
-function waveletShrink(img: ComplexImage, rows: number, columns: number, levels: number, threshold: number): ComplexImage {
+/** Soft thresholding of the complex Haar coefficients of `img` by magnitude, in place (re, im scratch given). */
+function waveletShrink(img: ComplexImage, re: Float64Array, im: Float64Array, rows: number, columns: number, levels: number, threshold: number): void {
   const n = rows * columns;
-  const re = new Float64Array(n);
-  const im = new Float64Array(n);
   for (let i = 0; i < n; i++) { re[i] = img[2 * i]; im[i] = img[2 * i + 1]; }
   haar2d(re, rows, columns, levels);
   haar2d(im, rows, columns, levels);
-  const coarse = rows >> levels;
+  const coarseRows = rows >> levels;
   const coarseCols = columns >> levels;
-  for (let i = 0; i < n; i++) {
-    const r = Math.floor(i / columns);
-    const c = i % columns;
-    if (r < coarse && c < coarseCols) continue; // the approximation band is not penalised
-    const m = Math.hypot(re[i], im[i]);
-    const keep = m > threshold ? (m - threshold) / m : 0;
-    re[i] *= keep;
-    im[i] *= keep;
+  for (let r = 0; r < rows; r++) {
+    for (let c = 0; c < columns; c++) {
+      if (r < coarseRows && c < coarseCols) continue; // the approximation band is not penalised
+      const i = r * columns + c;
+      const m = Math.hypot(re[i], im[i]);
+      const keep = m > threshold ? (m - threshold) / m : 0;
+      re[i] *= keep;
+      im[i] *= keep;
+    }
   }
   haar2d(re, rows, columns, levels, true);
   haar2d(im, rows, columns, levels, true);
-  const out = new Float64Array(2 * n);
-  for (let i = 0; i < n; i++) { out[2 * i] = re[i]; out[2 * i + 1] = im[i]; }
-  return out;
+  for (let i = 0; i < n; i++) { img[2 * i] = re[i]; img[2 * i + 1] = im[i]; }
 }
 
 export function fistaWaveletRecon(y: ComplexImage, mask: LineMask, fft: Fft2, opts: FistaOptions, rng: MT19937): ComplexImage {
   const { rows, columns } = fft;
-  let x = fft.inverse(y);
-  let z = x;
+  const len = rows * columns * 2;
+  // Every buffer is allocated once; the loop itself allocates nothing.
+  let x: ComplexImage = fft.inverse(y);
+  let xNext: ComplexImage = new Float64Array(len);
+  const z = Float64Array.from(x);
+  const k = new Float64Array(len);
+  const g = new Float64Array(len);
+  const shifted = new Float64Array(len);
+  const re = new Float64Array(rows * columns);
+  const im = new Float64Array(rows * columns);
   let t = 1;
-  for (let k = 0; k < opts.iterations; k++) {
-    const residual = applyMask(fft.forward(z), columns, mask);
-    for (let i = 0; i < residual.length; i++) residual[i] -= y[i];
-    const grad = fft.inverse(residual);
-    const g = new Float64Array(z.length);
-    for (let i = 0; i < z.length; i++) g[i] = z[i] - grad[i];
+  for (let it = 0; it < opts.iterations; it++) {
+    // Gradient step on the data term: g = z - F^H M (M F z - y).
+    fft.forwardInto(z, k);
+    applyMask(k, columns, mask);
+    for (let i = 0; i < len; i++) k[i] -= y[i];
+    fft.inverseInto(k, g);
+    for (let i = 0; i < len; i++) g[i] = z[i] - g[i];
+    // Proximal step in a randomly shifted wavelet frame.
     const dy = rng.nextBelow(1 << opts.levels);
     const dx = rng.nextBelow(1 << opts.levels);
-    const xNext = shift(waveletShrink(shift(g, rows, columns, dy, dx), rows, columns, opts.levels, opts.lambda), rows, columns, -dy, -dx);
+    shiftInto(g, shifted, rows, columns, dy, dx);
+    waveletShrink(shifted, re, im, rows, columns, opts.levels, opts.lambda);
+    shiftInto(shifted, xNext, rows, columns, -dy, -dx);
+    // Nesterov momentum.
     const tNext = (1 + Math.sqrt(1 + 4 * t * t)) / 2;
-    const zNext = new Float64Array(z.length);
-    for (let i = 0; i < z.length; i++) zNext[i] = xNext[i] + ((t - 1) / tNext) * (xNext[i] - x[i]);
-    x = xNext;
-    z = zNext;
+    const w = (t - 1) / tNext;
+    for (let i = 0; i < len; i++) z[i] = xNext[i] + w * (xNext[i] - x[i]);
+    [x, xNext] = [xNext, x];
     t = tNext;
   }
   // Data consistency: keep the acquired lines exactly.
-  const k = fft.forward(x);
+  fft.forwardInto(x, k);
   for (let r = 0; r < rows; r++) {
     if (!mask.lines[r]) continue;
     for (let i = r * columns * 2; i < (r + 1) * columns * 2; i++) k[i] = y[i];

@@ -19,12 +19,23 @@ export class Fft2 {
   }
 
   forward(img: ComplexImage): ComplexImage {
-    return this.run(img, false);
+    return this.run(img, false, new Float64Array(img.length));
   }
 
   inverse(k: ComplexImage): ComplexImage {
-    return this.run(k, true);
+    return this.run(k, true, new Float64Array(k.length));
   }
+
+  /** The same transforms into a caller's buffer (no allocation; `out` may not be `src`). */
+  forwardInto(img: ComplexImage, out: ComplexImage): ComplexImage {
+    return this.run(img, false, out);
+  }
+
+  inverseInto(k: ComplexImage, out: ComplexImage): ComplexImage {
+    return this.run(k, true, out);
+  }
+
+  private scratch: Float64Array | null = null;
 
   /** 1D transforms along the rows of a (n x m) complex image, straight on typed-array views. */
   private rowsPass(fft: FFT, src: Float64Array, dst: Float64Array, n: number, m: number, inverse: boolean): void {
@@ -36,27 +47,34 @@ export class Fft2 {
     }
   }
 
+  /** dst = scale * transpose(src) for an (n x m) complex image, in 16 x 16 tiles to stay in cache. */
   private static transpose(src: Float64Array, dst: Float64Array, n: number, m: number, scale: number): void {
-    for (let r = 0; r < n; r++) {
-      for (let c = 0; c < m; c++) {
-        const s = (r * m + c) * 2;
-        const d = (c * n + r) * 2;
-        dst[d] = src[s] * scale;
-        dst[d + 1] = src[s + 1] * scale;
+    const T = 16;
+    for (let r0 = 0; r0 < n; r0 += T) {
+      for (let c0 = 0; c0 < m; c0 += T) {
+        const rEnd = Math.min(n, r0 + T);
+        const cEnd = Math.min(m, c0 + T);
+        for (let r = r0; r < rEnd; r++) {
+          for (let c = c0; c < cEnd; c++) {
+            const s = (r * m + c) * 2;
+            const d = (c * n + r) * 2;
+            dst[d] = src[s] * scale;
+            dst[d + 1] = src[s + 1] * scale;
+          }
+        }
       }
     }
   }
 
-  private run(src: ComplexImage, inverse: boolean): ComplexImage {
+  private run(src: ComplexImage, inverse: boolean, out: ComplexImage): ComplexImage {
     const { rows, columns } = this;
-    const a = new Float64Array(rows * columns * 2);
-    const b = new Float64Array(rows * columns * 2);
+    const a = (this.scratch ??= new Float64Array(rows * columns * 2));
     const scale = inverse ? Math.sqrt(rows * columns) : 1 / Math.sqrt(rows * columns);
     this.rowsPass(this.rowFft, src, a, rows, columns, inverse);
-    Fft2.transpose(a, b, rows, columns, 1);
-    this.rowsPass(this.colFft, b, a, columns, rows, inverse);
-    Fft2.transpose(a, b, columns, rows, scale);
-    return b;
+    Fft2.transpose(a, out, rows, columns, 1);
+    this.rowsPass(this.colFft, out, a, columns, rows, inverse);
+    Fft2.transpose(a, out, columns, rows, scale);
+    return out;
   }
 }
 

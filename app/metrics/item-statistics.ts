@@ -20,7 +20,7 @@
  * `scale` (the raw top of the window) is added only on request: readers see it only where the kit
  * shows raw intensities (display: {intensity: none}).
  */
-import { percentile, percentileWindow } from '../blinding/display-scale.ts';
+import { quantileSorted, sortedSample, windowOfSorted } from '../blinding/display-scale.ts';
 import type { Volume } from '../images/volume.ts';
 import { DEFAULT_DISPLAY } from '../study/template.ts';
 import { otsuThreshold } from './otsu.ts';
@@ -71,14 +71,10 @@ export function itemStatistics(volume: Volume, options: ItemStatisticsOptions = 
   const { rows: R, columns: C, slices: S } = volume;
 
   // One regular subsample, sorted once, serves every quantile.
-  const step = Math.max(1, Math.floor(px.length / MAX_SAMPLES));
-  const sample = new Float32Array(Math.ceil(px.length / step));
-  let n = 0;
-  for (let i = 0; i < px.length; i += step) if (Number.isFinite(px[i])) sample[n++] = px[i];
-  const sorted = sample.subarray(0, n).sort();
-  const [low, high] = options.window ?? percentileWindow(sorted, options.percentiles ?? DEFAULT_DISPLAY.percentiles);
+  const sorted = sortedSample(px, MAX_SAMPLES);
+  const [low, high] = options.window ?? windowOfSorted(sorted, options.percentiles ?? DEFAULT_DISPLAY.percentiles);
   const scale = high > low ? high - low : 1;
-  const q = (p: number): number => (percentile(sorted, p, Infinity) - low) / scale;
+  const q = (p: number): number => (quantileSorted(sorted, p) - low) / scale;
 
   const threshold = otsuThreshold(px);
   let count = 0;
