@@ -10,7 +10,10 @@
  */
 import Database from 'better-sqlite3';
 import { spawn, spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync } from 'node:fs';
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { writeNpy } from '../../app/images/npy.ts';
+import { buildStudy } from '../../app/blinding/build.ts';
+import { loadTemplate } from '../../app/study/parse-template.ts';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fmt, percentileMs } from './stats.ts';
@@ -42,6 +45,38 @@ async function timeStart(dataDir: string): Promise<{ ms: number; url: string; st
   if (!res.ok) throw new Error(`app not served: ${res.status}`);
   await res.text();
   return { ms: performance.now() - t0, url, stop: () => child.kill('SIGTERM') };
+}
+
+/** A one-session study of `n` small items, built and served, so every submission is a first answer. */
+async function servedCommitStudy(n: number): Promise<{ url: string; stop: () => void }> {
+  const dir = mkdtempSync(join(tmpdir(), 'veil-bench-commit-'));
+  const px = new Float32Array(2 * 16 * 16).map((_, i) => i % 17);
+  for (let c = 0; c < n; c++) {
+    mkdirSync(join(dir, 'data', `c${c}`), { recursive: true });
+    writeFileSync(join(dir, 'data', `c${c}`, 'a.npy'), writeNpy(px, [2, 16, 16]));
+    writeFileSync(join(dir, 'data', `c${c}`, 'b.npy'), writeNpy(px, [2, 16, 16]));
+  }
+  writeFileSync(join(dir, 'b.study.yaml'), `title: Commit bench
+seed: 3
+sources: data
+methods:
+  - {id: m-a, label: A, path: "{case}/a.npy"}
+  - {id: m-b, label: B, path: "{case}/b.npy"}
+cases: auto
+questions:
+  - {id: sharpness, text: Sharp?, scale: {points: 5, low: a, high: b}}
+  - {id: artifacts, text: Clean?, scale: {points: 5, low: a, high: b}}
+  - {id: confidence, text: Sure?, scale: {points: 5, low: a, high: b}}
+readers: [R2]
+`);
+  await buildStudy(loadTemplate(join(dir, 'b.study.yaml')), join(dir, 'study'));
+  const child = spawn(process.execPath, [join(REPO, 'bin', 'veil.mjs'), 'serve', join(dir, 'study'), '--no-open', '--port', '0'], { stdio: ['ignore', 'pipe', 'pipe'] });
+  let out = '';
+  const url = await new Promise<string>((ok, fail) => {
+    child.stdout!.on('data', (d) => { out += d; const m = /(http:\/\/127\.0\.0\.1:\d+\/\?token=[\w-]+)/.exec(out); if (m) ok(m[1]); });
+    child.on('exit', (c) => fail(new Error(`veil serve exited ${c}`)));
+  });
+  return { url, stop: () => { child.kill('SIGTERM'); rmSync(dir, { recursive: true, force: true }); } };
 }
 
 async function commitLatency(url: string, n: number): Promise<number[]> {
@@ -90,9 +125,11 @@ export async function bench(): Promise<string[]> {
   cold.stop();
   await new Promise((r) => setTimeout(r, 500));
   const warm = await timeStart(data);
-  const N = 200;
-  const veil = await commitLatency(warm.url, N);
   warm.stop();
+  const N = 200;
+  const commitStudy = await servedCommitStudy(N / 2);
+  const veil = await commitLatency(commitStudy.url, N);
+  commitStudy.stop();
   const floor = bareInsertLatency(N);
   rmSync(data, { recursive: true, force: true });
 
