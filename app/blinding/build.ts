@@ -21,7 +21,7 @@ import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledIte
 import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from './kit-integrity.ts';
 import { randomBytes } from 'node:crypto';
 import { GENERATOR_NAME } from './streams.ts';
-import { displayMapFor, percentileWindow, toDisplayUint16, type DisplayAnchor } from './display-scale.ts';
+import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16, type DisplayAnchor } from './display-scale.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
 export const KITS_DIR = 'kits';
@@ -182,8 +182,10 @@ export async function buildStudy(
           sessions: template.design.sessions, washoutDays: template.design.washout_days,
           presentation: template.design.presentation,
           revisits: template.design.revisits ?? false,
-          // Window presets in display units; filled from the template's display section once it has them.
-          presets: [],
+          // Window presets in display units (0 and DISPLAY_MAX are the default window's black and white).
+          presets: display.presets.map((p) => ({
+            name: p.name, center: ((p.low + p.high) / 200) * DISPLAY_MAX, width: ((p.high - p.low) / 100) * DISPLAY_MAX,
+          })),
           questions: template.questions.map((q) => ({
             id: q.id, text: q.text, points: q.scale.points, low: q.scale.low, high: q.scale.high,
             labels: Object.fromEntries(Object.entries(q.labels).map(([k, v]) => [String(k), v])),

@@ -63,6 +63,10 @@ design:
   presentation: single
   sessions: 2
   washout_days: 14
+display:
+  presets:                       # in percent of the default window (0 black, 100 white)
+    - {name: Soft, low: 0, high: 70}
+    - {name: Wide, low: -10, high: 130}
 `;
 
 const SPACING: [number, number, number] = [0.9, 0.9, 4];

@@ -284,6 +284,13 @@ function checkDisplay(data: Record<string, unknown>, where: Locator): void {
   if (Array.isArray(p) && p.length === 2 && typeof p[0] === 'number' && typeof p[1] === 'number' && !(p[0] < p[1])) {
     where.add(['display', 'percentiles'], 'value', `the low percentile must be below the high one, got [${p[0]}, ${p[1]}]; e.g. [0, 99.5]`);
   }
+  if (Array.isArray(d.presets)) {
+    d.presets.forEach((preset, i) => {
+      if (isRecord(preset) && typeof preset.low === 'number' && typeof preset.high === 'number' && !(preset.low < preset.high)) {
+        where.add(['display', 'presets', i, 'high'], 'value', `a preset's high must be above its low, got low ${preset.low} and high ${preset.high}`);
+      }
+    });
+  }
   if (d.intensity === 'match-reference' && data.reference === undefined) {
     where.add(['display', 'intensity'], 'value',
       "match-reference maps each method onto the reference, but the template has no 'reference'; add one, or use intensity: percentile");
@@ -427,7 +434,10 @@ function toStudyTemplate(raw: RawTemplate, file: string): StudyTemplate {
       ...(raw.design.revisits !== undefined ? { revisits: raw.design.revisits } : {}),
     },
     ...(raw.display
-      ? { display: { matching: raw.display.matching, intensity: raw.display.intensity, percentiles: [raw.display.percentiles[0], raw.display.percentiles[1]] } }
+      ? { display: {
+        matching: raw.display.matching, intensity: raw.display.intensity, percentiles: [raw.display.percentiles[0], raw.display.percentiles[1]],
+        presets: (raw.display.presets ?? []).map(({ name, low, high }) => ({ name, low, high })),
+      } }
       : {}),
   };
 }

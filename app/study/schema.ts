@@ -128,7 +128,7 @@ export const INTENSITY_POLICIES = ['none', 'percentile', 'match-reference'] as c
 
 const display: SchemaObject = {
   type: 'object',
-  expected: 'a mapping with the keys matching, intensity and percentiles (all optional)',
+  expected: 'a mapping with the keys matching, intensity, percentiles and presets (all optional)',
   additionalProperties: false,
   properties: {
     matching: {
@@ -155,6 +155,23 @@ const display: SchemaObject = {
       default: [0, 99.5],
       expected: 'two percentiles [low, high] from 0 to 100, low below high (e.g. [0, 99.5])',
       items: { type: 'number', minimum: 0, maximum: 100, expected: 'a percentile from 0 to 100' },
+    },
+    presets: {
+      type: 'array',
+      default: [],
+      maxItems: 9,
+      expected: 'a list of up to 9 window presets, each {name, low, high}',
+      items: {
+        type: 'object',
+        additionalProperties: false,
+        required: ['name', 'low', 'high'],
+        expected: 'a window preset {name, low, high}: low and high in percent of the default window (0 its black, 100 its white)',
+        properties: {
+          name: { type: 'string', minLength: 1, maxLength: 40, expected: 'a short name shown to readers, e.g. Soft' },
+          low: { type: 'number', minimum: -100, maximum: 1000, expected: 'a percent of the default window from -100 to 1000' },
+          high: { type: 'number', minimum: -100, maximum: 1000, expected: 'a percent of the default window from -100 to 1000' },
+        },
+      },
     },
   },
 };

@@ -57,14 +57,16 @@ export interface DisplaySpec {
   intensity: 'none' | 'percentile' | 'match-reference';
   /** Low and high percentile (0-100) of the display window. */
   percentiles: [number, number];
+  /** Window presets for readers, low and high in percent of the default window (0 black, 100 white). */
+  presets: { name: string; low: number; high: number }[];
 }
 
-export const DEFAULT_DISPLAY: DisplaySpec = { matching: 'none', intensity: 'percentile', percentiles: [0, 99.5] };
+export const DEFAULT_DISPLAY: DisplaySpec = { matching: 'none', intensity: 'percentile', percentiles: [0, 99.5], presets: [] };
 
 /** The template's display policy, with the defaults where it has no `display` section. */
 export function displayPolicy(t: Pick<StudyTemplate, 'display'>): DisplaySpec {
   const d = t.display ?? DEFAULT_DISPLAY;
-  return { matching: d.matching, intensity: d.intensity, percentiles: [d.percentiles[0], d.percentiles[1]] };
+  return { matching: d.matching, intensity: d.intensity, percentiles: [d.percentiles[0], d.percentiles[1]], presets: d.presets ?? [] };
 }
 
 export interface StudyTemplate {

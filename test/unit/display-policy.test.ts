@@ -114,7 +114,7 @@ readers: [R1]
 
   it('defaults to no resampling and percentile scaling from the 0th to the 99.5th percentile', () => {
     expect(displayPolicy(parseTemplate(BASE, '/s/x.study.yaml'))).toEqual(DEFAULT_DISPLAY);
-    expect(DEFAULT_DISPLAY).toEqual({ matching: 'none', intensity: 'percentile', percentiles: [0, 99.5] });
+    expect(DEFAULT_DISPLAY).toEqual({ matching: 'none', intensity: 'percentile', percentiles: [0, 99.5], presets: [] });
   });
 
   it('names the line of a reversed window and of match-reference without a reference', () => {
@@ -126,6 +126,6 @@ readers: [R1]
       '11:28 display.percentiles[1]: must be a percentile from 0 to 100, got 120',
       "11:44 display.matching: must be one of: none (every image keeps its own matrix), reference-grid (every method is resampled in-plane, with linear interpolation, to the reference's rows and columns, or the first method's when there is no reference), got 'nearest'",
     ]);
-    expect(issues(`${BASE}display: {colour: grey}\n`)).toEqual(["11:11 display.colour: unknown key 'colour'; allowed: matching, intensity, percentiles"]);
+    expect(issues(`${BASE}display: {colour: grey}\n`)).toEqual(["11:11 display.colour: unknown key 'colour'; allowed: matching, intensity, percentiles, presets"]);
   });
 });

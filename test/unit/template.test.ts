@@ -112,7 +112,7 @@ describe('parseTemplate on valid templates', () => {
 
   it('accepts a display section (defaults filled) and a free-form analysis section', () => {
     const t = parseTemplate(`${BASE.join('\n')}\ndisplay: {matching: reference-grid}\nanalysis: {anything: goes}`, FILE);
-    expect(t.display).toEqual({ matching: 'reference-grid', intensity: 'percentile', percentiles: [0, 99.5] });
+    expect(t.display).toEqual({ matching: 'reference-grid', intensity: 'percentile', percentiles: [0, 99.5], presets: [] });
   });
 
   it('reads the example knee phantom template', () => {
