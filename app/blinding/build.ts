@@ -21,6 +21,7 @@ import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledIte
 import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from './kit-integrity.ts';
 import { randomBytes } from 'node:crypto';
 import { GENERATOR_NAME } from './streams.ts';
+import { blackOut, burnedInDecision } from './burned-in.ts';
 import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16, type DisplayAnchor } from './display-scale.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
@@ -155,6 +156,9 @@ export async function buildStudy(
         const m = metrics.addMethod(c.caseId, methodId, v);
         if (m) { writeMetric(ws.db, c.caseId, methodId, m.row.values, m.detail); metricCount++; }
         const shown = toDisplayUint16(v.pixels, displayMapFor(display.intensity, display.percentiles, v.pixels, anchor));
+        const burned = burnedInDecision(template.burned_in, !!source.burnedIn, `case ${c.caseId}: ${methodId} (${source.provenance.path})`);
+        if (burned.problem) throw new BuildError([burned.problem]);
+        if (burned.apply) blackOut(shown.data, v.rows, v.columns, v.slices, template.burned_in!);
         const bytes = writeNpy(shown.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
         const sha256 = sha256Hex(bytes);
         for (const { it, view } of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {

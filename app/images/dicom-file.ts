@@ -42,6 +42,8 @@ export interface DicomFrame {
   spacingBetweenSlices: number | null;
   instanceNumber: number | null;
   dataType: string;
+  /** BurnedInAnnotation (0028,0301) is YES: the pixels may show identifying text. */
+  burnedIn: boolean;
   syntax: TransferSyntax;
   /** Writes rows x columns float32 values into target from index `at`; returns their smallest and largest (null: none finite). */
   decode(target: Float32Array, at: number): [number, number] | null;
@@ -231,6 +233,7 @@ function framesOf(ds: DataSet, syntax: TransferSyntax, fileLength: number, path:
   }
   const seriesUid = ds.string('x0020000e')?.trim() || null;
   const seriesDescription = ds.string('x0008103e')?.trim() ?? '';
+  const burnedIn = (ds.string('x00280301') ?? '').trim().toUpperCase() === 'YES';
   const instanceNumber = ds.intString('x00200013');
   const out: DicomFrame[] = [];
   for (let f = 0; f < frames; f++) {
@@ -262,6 +265,7 @@ function framesOf(ds: DataSet, syntax: TransferSyntax, fileLength: number, path:
       spacingBetweenSlices: between !== null && between > 0 ? between : null,
       instanceNumber: instanceNumber !== undefined && Number.isFinite(instanceNumber) ? instanceNumber : null,
       dataType: format.dataType,
+      burnedIn,
       syntax,
       decode: (target, at) => {
         try {

@@ -184,6 +184,7 @@ export function planSeries(frames: DicomFrame[], path: string, provenance: Volum
     ...(orientation && sorted[0].position ? { origin: [...sorted[0].position] as [number, number, number] } : {}),
     ...(first.sliceThickness !== null ? { sliceThickness: first.sliceThickness } : {}),
     dataType: first.dataType,
+    ...(sorted.some((f) => f.burnedIn) ? { burnedIn: true } : {}),
     notes,
     sliceSources: sorted.map((f) => f.name),
   };

@@ -77,6 +77,8 @@ export interface DicomSeriesInfo {
   studyUid?: string;
   seriesUid?: string;
   frameOfReferenceUid?: string;
+  /** Writes BurnedInAnnotation YES (for tests of the blackout of burned-in text). */
+  burnedIn?: boolean;
 }
 
 /** The files of one series, one per slice, in slice order. */
@@ -122,6 +124,7 @@ export function writeDicomSeries(v: Volume, info: DicomSeriesInfo = {}): Uint8Ar
       us(0x00280101, 16),
       us(0x00280102, 15),
       us(0x00280103, 0),
+      ...(info.burnedIn ? [text(0x00280301, 'CS', 'YES')] : []),
       ds(0x00281052, [min]),
       ds(0x00281053, [slope]),
       { tag: 0x7fe00010, vr: 'OW', value: stored },

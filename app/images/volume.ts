@@ -42,6 +42,8 @@ export interface Volume {
   range?: [number, number];
   /** Where each slice came from (file name, `#n` for a frame of a multi-frame file), for sources made of several images. */
   sliceSources?: string[];
+  /** The source says its pixels may carry identifying text (DICOM BurnedInAnnotation YES). */
+  burnedIn?: boolean;
   /** Remarks about the source that do not stop reading it (uneven spacing, skipped files, ...). */
   notes?: string[];
 }

@@ -18,6 +18,9 @@
 import { existsSync } from 'node:fs';
 import { percentileWindow } from '../blinding/display-scale.ts';
 import { loadVolume } from '../images/load.ts';
+import { burnedInDecision } from '../blinding/burned-in.ts';
+import { itemStatistics } from '../metrics/item-statistics.ts';
+import { blindingStrength, formatBlindingStrength, type BlindingStrength, type ItemFeatures } from '../metrics/blinding-strength.ts';
 import { AXIS_CONVENTION } from '../images/volume.ts';
 import type { SourceFormat, Volume } from '../images/volume.ts';
 import { caseCandidates, sourcePath } from './cases.ts';
@@ -73,6 +76,8 @@ export interface CheckReport {
   sources: SourceRow[];
   problems: CheckIssue[];
   warnings: CheckWarning[];
+  /** Could readers tell the methods apart from simple image statistics? Null with fewer than two complete cases. */
+  blinding: BlindingStrength | null;
 }
 
 export interface CheckProgress { done: number; total: number; what: string }
@@ -215,6 +220,7 @@ export async function checkStudy(template: StudyTemplate, onProgress?: (p: Check
 
   const total = plan.reduce((n, p) => n + p.entries.length, 0);
   let done = 0;
+  const statistics: ItemFeatures[] = [];
   for (const { caseId, entries } of plan) {
     cases.push(caseId);
     let anchor: SourceRow | null = null;
@@ -224,6 +230,14 @@ export async function checkStudy(template: StudyTemplate, onProgress?: (p: Check
       try {
         const v = await loadVolume(e.path);
         describe(v, row, display);
+        if (v.burnedIn) {
+          const d = burnedInDecision(template.burned_in, true, `${e.path}`);
+          if (d.problem) f.problem(caseId, e.source, e.path, d.problem);
+          else f.warn('source', caseId, e.source, e.path, d.apply
+            ? 'says it carries burned-in text (BurnedInAnnotation YES); the template\'s burned_in regions will be blacked out'
+            : 'says it carries burned-in text (BurnedInAnnotation YES); the template says burned_in.apply: never, so check the images yourself');
+        }
+        if (e.source !== 'reference') statistics.push({ case: caseId, method: e.source, stats: itemStatistics(v, { percentiles: display.percentiles, includeScale: display.intensity === 'none' }) });
       } catch (err) {
         row.error = (err as Error).message;
         f.problem(caseId, e.source, e.path, row.error);
@@ -239,8 +253,13 @@ export async function checkStudy(template: StudyTemplate, onProgress?: (p: Check
     }
   }
 
+  const methodsSeen = new Set(statistics.map((s) => s.method));
+  const completeCases = cases.filter((c) => statistics.filter((s) => s.case === c).length === methodsSeen.size);
+  const usable = statistics.filter((s) => completeCases.includes(s.case));
+  const blinding = completeCases.length >= 2 && methodsSeen.size >= 2 ? blindingStrength(usable, { seed: template.seed }) : null;
   return {
     ok: f.problems.length === 0,
+    blinding,
     template: template.file,
     title: template.title,
     axisConvention: AXIS_CONVENTION,
@@ -279,6 +298,7 @@ export function formatCheckReport(r: CheckReport, counts: { methods: number; que
     lines.push('', `${r.warnings.length} warning(s):`);
     for (const w of r.warnings) lines.push(`  - [${w.kind}] ${w.message}`);
   }
+  if (r.blinding) lines.push('', formatBlindingStrength(r.blinding).trimEnd());
   if (r.problems.length) {
     lines.push('', `${r.problems.length} problem(s); a build would fail:`);
     for (const p of r.problems) lines.push(`  - ${p.message}`);

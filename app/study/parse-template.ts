@@ -14,7 +14,7 @@ import { LineCounter, isAlias, isMap, isScalar, isSeq, parseDocument } from 'yam
 import type { Document, Node } from 'yaml';
 import { EXPECTED_KEYWORD, MAX_POINTS, MIN_POINTS, templateSchema } from './schema.ts';
 import { TemplateError } from './template.ts';
-import type { DisplaySpec, Question, StudyTemplate, TemplateIssue } from './template.ts';
+import type { BurnedInSpec, DisplaySpec, Question, StudyTemplate, TemplateIssue } from './template.ts';
 
 type Segment = string | number;
 type Anchor = 'key' | 'value';
@@ -399,6 +399,7 @@ interface RawTemplate {
   readers: string[];
   design: StudyTemplate['design'];
   display?: DisplaySpec;
+  burned_in?: BurnedInSpec;
 }
 
 /** How a yes-no question is scored: 1 = no, 2 = yes. */
@@ -433,6 +434,7 @@ function toStudyTemplate(raw: RawTemplate, file: string): StudyTemplate {
       washout_days: raw.design.washout_days,
       ...(raw.design.revisits !== undefined ? { revisits: raw.design.revisits } : {}),
     },
+    ...(raw.burned_in ? { burned_in: { apply: raw.burned_in.apply, regions: (raw.burned_in.regions ?? []).map(({ x, y, width, height }) => ({ x, y, width, height })) } } : {}),
     ...(raw.display
       ? { display: {
         matching: raw.display.matching, intensity: raw.display.intensity, percentiles: [raw.display.percentiles[0], raw.display.percentiles[1]],

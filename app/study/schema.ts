@@ -121,6 +121,35 @@ const design: SchemaObject = {
   },
 };
 
+const pixelCount = (what: string): SchemaObject => ({ type: 'integer', minimum: 0, maximum: 100000, expected: `a whole number of pixels (${what})` });
+
+/** Rectangles blacked out in every slice where a source may show identifying text (DICOM PS3.15 Annex E, Clean Pixel Data). */
+const burnedIn: SchemaObject = {
+  type: 'object',
+  additionalProperties: false,
+  expected: 'a mapping with apply (when-stated, always or never) and regions',
+  properties: {
+    apply: {
+      type: 'string',
+      enum: ['when-stated', 'always', 'never'],
+      default: 'when-stated',
+      expected: 'one of: when-stated (black out the regions in series whose BurnedInAnnotation is YES), always, never (you have checked there is no burned-in text)',
+    },
+    regions: {
+      type: 'array',
+      default: [],
+      expected: 'a list of rectangles {x, y, width, height} in pixels from the top-left corner, blacked out on every slice',
+      items: {
+        type: 'object',
+        additionalProperties: false,
+        required: ['x', 'y', 'width', 'height'],
+        expected: 'a rectangle {x, y, width, height} in pixels',
+        properties: { x: pixelCount('column of the left edge'), y: pixelCount('row of the top edge'), width: pixelCount('width'), height: pixelCount('height') },
+      },
+    },
+  },
+};
+
 /** How methods of different matrix sizes are brought onto one grid for display (design.md, "Display policy"). */
 export const MATCHING_POLICIES = ['none', 'reference-grid'] as const;
 /** How intensities are normalized for display (design.md, "Display policy"). */
@@ -184,7 +213,7 @@ export const templateSchema: SchemaObject = {
   type: 'object',
   expected:
     'a mapping with the keys title, seed, sources, methods, cases, questions, readers ' +
-    '(optional: reference, design, display, analysis)',
+    '(optional: reference, design, display, burned_in, analysis)',
   required: [...REQUIRED_KEYS],
   additionalProperties: false,
   properties: {
@@ -213,6 +242,7 @@ export const templateSchema: SchemaObject = {
     },
     design,
     display,
+    burned_in: burnedIn,
     analysis: { type: 'object', expected: 'a mapping (analysis settings)' },
   },
 };

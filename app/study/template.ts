@@ -69,6 +69,14 @@ export function displayPolicy(t: Pick<StudyTemplate, 'display'>): DisplaySpec {
   return { matching: d.matching, intensity: d.intensity, percentiles: [d.percentiles[0], d.percentiles[1]], presets: d.presets ?? [] };
 }
 
+export interface BurnedInRegion { x: number; y: number; width: number; height: number }
+
+export interface BurnedInSpec {
+  /** when-stated: only sources whose BurnedInAnnotation is YES; always; never (checked by the coordinator). */
+  apply: 'when-stated' | 'always' | 'never';
+  regions: BurnedInRegion[];
+}
+
 export interface StudyTemplate {
   /** Absolute path of the template file. */
   file: string;
@@ -85,6 +93,8 @@ export interface StudyTemplate {
   design: DesignSpec;
   /** Present only when the template has a `display` section; read it through displayPolicy(). */
   display?: DisplaySpec;
+  /** Present only when the template has a `burned_in` section. */
+  burned_in?: BurnedInSpec;
 }
 
 /** One problem found in a template: always names the file, and the line and key where known. */
