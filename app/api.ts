@@ -15,6 +15,7 @@ import {
   recordSubmission, submittedItems,
 } from './store/reader-answers.ts';
 import { checkSubmission, progressOf, sessionStates, type StoredState } from './store/reading-state.ts';
+import { readWashoutOverrides } from './blinding/washout-override.ts';
 import type { OpenedDatabase } from './store/open.ts';
 import { RESEARCH_NOTICE, VEIL_VERSION } from './notice.ts';
 import { coordinatorOps } from './coordinator-ops.ts';
@@ -31,7 +32,10 @@ export interface ApiHandle extends VeilApi {
 
 function storedState(k: OpenKit): StoredState {
   const db = k.answers.db;
-  return { submitted: submittedItems(db), scores: currentScores(db), comments: currentComments(db), completed: completedSessions(db) };
+  return {
+    submitted: submittedItems(db), scores: currentScores(db), comments: currentComments(db), completed: completedSessions(db),
+    overrides: readWashoutOverrides(k.dir, k.integrity),
+  };
 }
 
 export interface ApiOptions {
@@ -122,7 +126,7 @@ export function createApi(root: string, opts: ApiOptions = {}): ApiHandle {
         comments: Object.fromEntries(st.comments),
         flags: Object.fromEntries(flags),
         submitted: [...st.submitted.keys()],
-        sessionStates: sessionStates(m, st.submitted, st.completed, now),
+        sessionStates: sessionStates(m, st.submitted, st.completed, now, st.overrides),
         displayCheck: lastDisplayCheck(k.answers.db),
         now: now.toISOString(),
         progress: progressOf(m, st.submitted),
@@ -153,7 +157,7 @@ export function createApi(root: string, opts: ApiOptions = {}): ApiHandle {
         });
       }
       const after = storedState(k);
-      return { progress: progressOf(k.manifest, after.submitted), sessionStates: sessionStates(k.manifest, after.submitted, after.completed, now) };
+      return { progress: progressOf(k.manifest, after.submitted), sessionStates: sessionStates(k.manifest, after.submitted, after.completed, now, after.overrides) };
     },
     async confirmDisplayCheck({ reader, seen }) {
       if (typeof seen !== 'boolean') throw new ApiError('seen must be true or false');

@@ -13,6 +13,7 @@ import { loadVolume } from './images/load.ts';
 import { buildStudy, BuildError, type BuildProgress, type BuildSummary } from './blinding/build.ts';
 import { writeDemo } from './demo/demo.ts';
 import { collectBundles } from './blinding/collect.ts';
+import { unlockSession, UnlockError } from './blinding/unlock.ts';
 import { formatBlindingStrength } from './metrics/blinding-strength.ts';
 import { workspacePath } from './store/workspace.ts';
 import { parseTidyCsv } from './report/tidy-csv.ts';
@@ -113,6 +114,21 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
         }
       }
       if (results.some((r) => r.status === 'refused' || r.status === 'conflict')) process.exitCode = 1;
+    });
+
+  program.command('unlock').argument('<dir>', 'study folder')
+    .description("lift a reader's washout lock before a session early (signed override, written to the audit log)")
+    .requiredOption('--reader <code>', 'reader code')
+    .requiredOption('--session <n>', 'the session to open', (v) => wholeNumber(v, 1))
+    .requiredOption('--reason <text>', 'why (kept in the audit log)')
+    .action(async (dir: string, o: { reader: string; session: number; reason: string }) => {
+      try {
+        const file = unlockSession(dir, o.reader, o.session, o.reason);
+        io.out(`Session ${o.session} of ${o.reader} opens now. Override written to ${file}; if the reader works on another machine, send them this file for the kit's overrides/ folder.\n`);
+      } catch (e) {
+        if (e instanceof UnlockError) throw new InputError(e.message);
+        throw e;
+      }
     });
 
   program.command('report').argument('<dir>', 'study folder')

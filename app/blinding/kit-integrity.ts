@@ -15,7 +15,7 @@ import { canonicalJson } from './canonical-json.ts';
 
 export const INTEGRITY_FILE = 'integrity.json';
 /** Files that live in a kit folder but change while reading, so they are not listed. */
-const UNLISTED = [/^answers\.sqlite(-wal|-shm|\.lock)?$/, /^results(\/|$)/, new RegExp(`^${INTEGRITY_FILE.replace('.', '\\.')}$`)];
+const UNLISTED = [/^answers\.sqlite(-wal|-shm|\.lock)?$/, /^results(\/|$)/, /^overrides(\/|$)/, new RegExp(`^${INTEGRITY_FILE.replace('.', '\\.')}$`)];
 
 export interface KitFileEntry { path: string; bytes: number; sha256: string }
 

@@ -25,14 +25,17 @@ export function progressOf(manifest: KitManifest, submitted: Map<string, ItemRec
   return { answered, total: manifest.items.length, next };
 }
 
-export function sessionStates(manifest: KitManifest, submitted: Map<string, ItemRecord>, completed: Map<number, string>, now: Date): SessionState[] {
+export function sessionStates(
+  manifest: KitManifest, submitted: Map<string, ItemRecord>, completed: Map<number, string>, now: Date, overrides: Set<number> = new Set(),
+): SessionState[] {
   const out: SessionState[] = [];
   for (let s = 1; s <= manifest.sessions; s++) {
     const items = manifest.items.filter((i) => i.session === s);
     const before = out[s - 2];
     const opensAt = before?.completedAt ? new Date(Date.parse(before.completedAt) + manifest.washoutDays * DAY_MS).toISOString() : null;
     const completedAt = completed.get(s) ?? null;
-    const open = !completedAt && (s === 1 || (!!opensAt && now.getTime() >= Date.parse(opensAt)));
+    const washedOut = !!opensAt && (now.getTime() >= Date.parse(opensAt) || overrides.has(s));
+    const open = !completedAt && (s === 1 || washedOut);
     out.push({ session: s, items: items.length, answered: items.filter((i) => submitted.has(i.id)).length, completedAt, opensAt, open });
   }
   return out;
@@ -63,6 +66,8 @@ export interface StoredState {
   scores: Map<string, Record<string, number>>;
   comments: Map<string, Record<string, string>>;
   completed: Map<number, string>;
+  /** Sessions whose washout the coordinator lifted (signed override files in the kit). */
+  overrides?: Set<number>;
 }
 
 /** Validates a submission against the kit and the stored answers; throws ApiError naming the field. */
@@ -111,7 +116,7 @@ export function checkSubmission(m: KitManifest, req: SubmitRequest, stored: Stor
   const result: CheckedSubmission = { scores, comments, flag, seconds, unchanged, endsSession: null };
   if (unchanged) return result;
 
-  const state = sessionStates(m, stored.submitted, stored.completed, now)[item.session - 1];
+  const state = sessionStates(m, stored.submitted, stored.completed, now, stored.overrides)[item.session - 1];
   if (!state) throw new ApiError(`item '${item.id}' is in session ${item.session}, but the kit has ${m.sessions}`, 409);
   if (state.completedAt) throw new ApiError(`session ${item.session} is complete; its answers are final`, 409);
   if (!state.open) {
