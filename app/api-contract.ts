@@ -72,6 +72,8 @@ export interface KitItemView {
   session: number;
   /** One view for single presentation; two (left, right) for side-by-side. */
   views: KitImageView[];
+  /** A calibration item: its intended scores and what the reader should see; left out of the analysis. */
+  calibration?: { scores: Record<string, number>; note: string };
 }
 
 export interface KitView {

@@ -119,8 +119,9 @@ export function createApi(root: string, opts: ApiOptions = {}): ApiHandle {
         kitId: m.kitId, reader: m.reader, title: m.title, sessions: m.sessions, washoutDays: m.washoutDays,
         revisits: m.revisits, presets: m.presets,
         questions: m.questions.map(({ id, text, type, points, low, high, labels, required, comment }) => ({ id, text, type, points, low, high, labels, required, comment })),
-        items: m.items.map(({ id, session, views }) => ({
+        items: m.items.map(({ id, session, views, calibration }) => ({
           id, session, views: views.map(({ columns, rows, slices, spacing, window }) => ({ columns, rows, slices, spacing, window })),
+          ...(calibration ? { calibration } : {}),
         })),
         answers: Object.fromEntries(st.scores),
         comments: Object.fromEntries(st.comments),

@@ -20,7 +20,7 @@ import { audit } from '../store/open.ts';
 import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledItem } from './design.ts';
 import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from './kit-integrity.ts';
 import { randomBytes } from 'node:crypto';
-import { GENERATOR_NAME } from './streams.ts';
+import { drawOpaqueIds, GENERATOR_NAME } from './streams.ts';
 import { blackOut, burnedInDecision } from './burned-in.ts';
 import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16, type DisplayAnchor } from './display-scale.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
@@ -173,6 +173,34 @@ export async function buildStudy(
       }
     }
 
+    // Calibration items: read first by every reader, in the template's order, each with its own opaque id.
+    const calibrationItems = new Map<string, KitItem[]>(template.readers.map((r) => [r, []]));
+    const taken = new Set(schedule.map((x) => x.itemId));
+    const calibrationIds = drawOpaqueIds(template.seed, 'calibration-ids', template.calibration.length * template.readers.length + taken.size)
+      .filter((id) => !taken.has(id));
+    for (const [k, cal] of template.calibration.entries()) {
+      const v = await loadVolume(cal.path);
+      const anchorOwn = { bounds: percentileWindow(v.pixels, display.percentiles), pixels: null };
+      const shown = toDisplayUint16(v.pixels, displayMapFor('percentile', display.percentiles, v.pixels, anchorOwn));
+      const burned = burnedInDecision(template.burned_in, !!v.burnedIn, `calibration item ${k + 1} (${cal.path})`);
+      if (burned.problem) throw new BuildError([burned.problem]);
+      if (burned.apply) blackOut(shown.data, v.rows, v.columns, v.slices, template.burned_in!);
+      const bytes = writeNpy(shown.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
+      const sha256 = sha256Hex(bytes);
+      template.readers.forEach((reader, r) => {
+        const id = calibrationIds[r * template.calibration.length + k];
+        const image = `images/${id}.npy`;
+        pendingWrites.push(writeFile(join(staging, KITS_DIR, reader, image), bytes));
+        imageHashes.get(reader)!.set(image, { path: image, bytes: bytes.length, sha256 });
+        calibrationItems.get(reader)!.push({
+          id, session: 1, calibration: { scores: cal.scores, note: cal.note },
+          views: [{ image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: shown.window }],
+        });
+        ws.db.prepare('INSERT INTO calibration_item (item_id, reader_code, position, path, scores, note) VALUES (?, ?, ?, ?, ?, ?)')
+          .run(id, reader, k, cal.path, JSON.stringify(cal.scores), cal.note);
+      });
+    }
+
     await drainWrites(0);
     const blinding = metrics.blinding(template.seed);
     ws.db.prepare('UPDATE study SET blinding = ? WHERE id = 1').run(blinding ? JSON.stringify(blinding) : null);
@@ -195,7 +223,7 @@ export async function buildStudy(
             labels: Object.fromEntries(Object.entries(q.labels).map(([k, v]) => [String(k), v])),
             type: q.type ?? 'likert', required: q.required ?? true, comment: q.comment ?? false,
           })),
-          items: mine.map((s) => kitItems.get(reader)!.get(s.itemId)!),
+          items: [...calibrationItems.get(reader)!, ...mine.map((s) => kitItems.get(reader)!.get(s.itemId)!)],
         };
         writeFileSync(join(staging, KITS_DIR, reader, KIT_MANIFEST), JSON.stringify(manifest, null, 1));
         const finalPath = join(out, KITS_DIR, reader);

@@ -27,6 +27,7 @@ export interface CollectResult {
 interface KitRow { reader_code: string; kit_id: string; bundle_key: string | null }
 
 function importAnswers(db: Database.Database, b: ResultsBundle, knownItems: Set<string>): number {
+  const calibration = new Set((db.prepare('SELECT item_id FROM calibration_item WHERE reader_code = ?').all(b.reader) as { item_id: string }[]).map((r) => r.item_id));
   const exists = db.prepare("SELECT 1 FROM answer WHERE item_id = ? AND question_id = ? AND reader_revision = ? AND source = 'collected'");
   const next = db.prepare('SELECT COALESCE(MAX(revision), 0) + 1 AS r FROM answer WHERE item_id = ? AND question_id = ?');
   const ins = db.prepare(`INSERT INTO answer (item_id, question_id, score, revision, seconds, answered_at, source, reader_revision)
@@ -34,6 +35,7 @@ function importAnswers(db: Database.Database, b: ResultsBundle, knownItems: Set<
   let added = 0;
   for (const r of (b.tables.answer ?? []) as Row[]) {
     const item = String(r.item_id);
+    if (calibration.has(item)) continue; // calibration answers stay with the bundle; they are not analysed
     if (!knownItems.has(item)) throw new BundleError(`answer for item '${item}', which is not in ${b.reader}'s kit`);
     if (exists.get(item, r.question_id, r.revision)) continue;
     const revision = (next.get(item, r.question_id) as { r: number }).r;

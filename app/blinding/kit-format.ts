@@ -56,6 +56,8 @@ export interface KitItem {
   session: number;
   /** One view for single presentation; two (left, right) for side-by-side. */
   views: KitImage[];
+  /** A calibration item: the intended scores and what to see, shown to the reader. Absent: a study item. */
+  calibration?: { scores: Record<string, number>; note: string };
 }
 
 export interface KitManifest {

@@ -136,7 +136,7 @@ CREATE TABLE bundle (
 
 workspaceMigrations.push({
   version: 3,
-  description: 'image metrics per item against the reference, and the blinding-strength check',
+  description: 'image metrics per item against the reference, the blinding-strength check, calibration items',
   sql: `
 -- One row per (case, method) with a reference: PSNR, SSIM, NRMSE, HFEN (and masked values) as
 -- metricRow() gives them, and the full result with its conventions. Coordinator side only.
@@ -148,6 +148,15 @@ CREATE TABLE metric (
   PRIMARY KEY (case_id, method_id)
 );
 ALTER TABLE study ADD COLUMN blinding TEXT;
+-- Calibration items: read first by every reader with the intended scores shown; not analysed.
+CREATE TABLE calibration_item (
+  item_id TEXT PRIMARY KEY,
+  reader_code TEXT NOT NULL REFERENCES reader(code),
+  position INTEGER NOT NULL,
+  path TEXT NOT NULL,
+  scores TEXT NOT NULL,
+  note TEXT NOT NULL
+);
 `,
 });
 

@@ -276,6 +276,23 @@ function checkQuestionTypes(data: Record<string, unknown>, where: Locator): void
   });
 }
 
+/** Calibration scores name the template's questions and lie on their scales. */
+function checkCalibration(data: Record<string, unknown>, where: Locator): void {
+  if (!Array.isArray(data.calibration) || !Array.isArray(data.questions)) return;
+  const points = new Map<string, number>();
+  for (const q of data.questions) {
+    if (isRecord(q) && typeof q.id === 'string') points.set(q.id, q.type === 'yes-no' ? 2 : isRecord(q.scale) && typeof q.scale.points === 'number' ? q.scale.points : 0);
+  }
+  data.calibration.forEach((c, i) => {
+    if (!isRecord(c) || !isRecord(c.scores)) return;
+    for (const [id, score] of Object.entries(c.scores)) {
+      const n = points.get(id);
+      if (n === undefined) where.add(['calibration', i, 'scores', id], 'key', `'${id}' is not a question; questions: ${[...points.keys()].join(', ')}`);
+      else if (typeof score === 'number' && n > 0 && !(score >= 1 && score <= n)) where.add(['calibration', i, 'scores', id], 'value', `the intended score must be from 1 to ${n}, got ${score}`);
+    }
+  });
+}
+
 /** Display rules the schema cannot express: percentiles in order; match-reference needs a reference. */
 function checkDisplay(data: Record<string, unknown>, where: Locator): void {
   const d = data.display;
@@ -355,6 +372,7 @@ export function parseTemplate(text: string, file: string): StudyTemplate {
     checkQuestionTypes(data, where);
     checkPaths(data, where);
     checkDisplay(data, where);
+    checkCalibration(data, where);
   }
   if (where.issues.length > 0) throw new TemplateError(sortIssues(where.issues));
 
@@ -400,6 +418,7 @@ interface RawTemplate {
   design: StudyTemplate['design'];
   display?: DisplaySpec;
   burned_in?: BurnedInSpec;
+  calibration?: { path: string; scores: Record<string, number>; note?: string }[];
 }
 
 /** How a yes-no question is scored: 1 = no, 2 = yes. */
@@ -434,6 +453,7 @@ function toStudyTemplate(raw: RawTemplate, file: string): StudyTemplate {
       washout_days: raw.design.washout_days,
       ...(raw.design.revisits !== undefined ? { revisits: raw.design.revisits } : {}),
     },
+    calibration: (raw.calibration ?? []).map((c) => ({ path: resolve(sources, c.path), scores: { ...c.scores }, note: c.note ?? '' })),
     ...(raw.burned_in ? { burned_in: { apply: raw.burned_in.apply, regions: (raw.burned_in.regions ?? []).map(({ x, y, width, height }) => ({ x, y, width, height })) } } : {}),
     ...(raw.display
       ? { display: {

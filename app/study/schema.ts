@@ -213,7 +213,7 @@ export const templateSchema: SchemaObject = {
   type: 'object',
   expected:
     'a mapping with the keys title, seed, sources, methods, cases, questions, readers ' +
-    '(optional: reference, design, display, burned_in, analysis)',
+    '(optional: reference, design, display, burned_in, calibration, analysis)',
   required: [...REQUIRED_KEYS],
   additionalProperties: false,
   properties: {
@@ -243,6 +243,22 @@ export const templateSchema: SchemaObject = {
     design,
     display,
     burned_in: burnedIn,
+    calibration: {
+      type: 'array',
+      maxItems: 20,
+      expected: 'a list of calibration items, each {path, scores, note}, read first and left out of the analysis',
+      items: {
+        type: 'object',
+        additionalProperties: false,
+        required: ['path', 'scores'],
+        expected: 'a calibration item {path, scores, note}',
+        properties: {
+          path: text('an image path relative to sources (a file or a DICOM folder), e.g. calibration/blurred.npy'),
+          scores: { type: 'object', expected: 'the intended score of each question, e.g. {sharpness: 2}', additionalProperties: { type: 'integer', expected: 'a whole-number score' } },
+          note: { type: 'string', expected: 'what the reader should see in this image' },
+        },
+      },
+    },
     analysis: { type: 'object', expected: 'a mapping (analysis settings)' },
   },
 };

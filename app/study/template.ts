@@ -77,6 +77,14 @@ export interface BurnedInSpec {
   regions: BurnedInRegion[];
 }
 
+/** An item every reader reads first, with its intended scores shown; left out of the analysis. */
+export interface CalibrationItem {
+  /** Absolute path of the image (file or DICOM folder). */
+  path: string;
+  scores: Record<string, number>;
+  note: string;
+}
+
 export interface StudyTemplate {
   /** Absolute path of the template file. */
   file: string;
@@ -95,6 +103,8 @@ export interface StudyTemplate {
   display?: DisplaySpec;
   /** Present only when the template has a `burned_in` section. */
   burned_in?: BurnedInSpec;
+  /** Calibration items (empty when the template has none). */
+  calibration: CalibrationItem[];
 }
 
 /** One problem found in a template: always names the file, and the line and key where known. */
