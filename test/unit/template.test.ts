@@ -85,6 +85,7 @@ describe('parseTemplate on valid templates', () => {
       ],
       readers: ['R1', 'R2'],
       design: { presentation: 'side-by-side', sessions: 2, washout_days: 7 },
+      calibration: [],
     });
     expect(Object.keys(t.questions[0].labels)).toEqual(['1', '5']);
   });
