@@ -34,6 +34,7 @@ test('a reader scores three items by keyboard, reloads, and resumes at item 4 wi
   await page.keyboard.press('ArrowLeft');
   await page.keyboard.press('ArrowLeft');
   await expect(page.getByTestId('slice-label')).toHaveText('Slice 2 / 4');
+  await page.screenshot({ path: 'test-results/screens/reading-room.png' });
   // Dragging with the right button changes window and level.
   const before = await page.getByText(/^W \d+ · L \d+$/).textContent();
   const box = (await page.getByTestId('viewer').boundingBox())!;
@@ -42,7 +43,7 @@ test('a reader scores three items by keyboard, reloads, and resumes at item 4 wi
   await page.mouse.move(box.x + box.width / 2 - 120, box.y + box.height / 2 + 60, { steps: 6 });
   await page.mouse.up({ button: 'right' });
   await expect(page.getByText(/^W \d+ · L \d+$/)).not.toHaveText(before!);
-  await page.screenshot({ path: 'test-results/screens/reading-room.png' });
+  await page.screenshot({ path: 'test-results/screens/reading-room-window.png' });
 
   // Enter without every score is refused with a message beside the questions.
   await page.keyboard.press('4');
