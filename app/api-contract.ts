@@ -136,7 +136,7 @@ export interface VeilApi extends CoordinatorApi, AnalysisApi {
   agreement(req?: AgreementRequest): Promise<import('./stats/agreement-types.ts').AgreementReport & { seedFrom: 'study' | 'request' }>;
 }
 
-export const COORDINATOR_OPERATIONS = ['studyOverview', 'startBuild', 'job', 'cancelJob', 'collect'] as const satisfies readonly (keyof CoordinatorApi)[];
+export const COORDINATOR_OPERATIONS = ['studyOverview', 'checkTemplate', 'startBuild', 'job', 'cancelJob', 'collect'] as const satisfies readonly (keyof CoordinatorApi)[];
 
 // ---- Analysis (study folders only): the report's tables and figures, and exporting the report ----
 export type { AnalysisFilter, AnalysisResult, ReportFigure, ReportTable } from './report/analysis-types.ts';
@@ -207,6 +207,16 @@ export interface CollectResultView {
   reason?: string;
 }
 
+/** What the coordinator's screen shows of `veil check` (the JSON of `veil check --json`, in part). */
+export interface CheckView {
+  ok: boolean;
+  title: string;
+  sources: { case: string; source: string; path: string; format?: string; shape?: number[]; spacing?: number[]; dataType?: string; range?: number[]; error?: string }[];
+  problems: { message: string }[];
+  warnings: { kind: string; message: string }[];
+  blinding: { accuracy: number; chance: number; pValue: number; warning: string | null } | null;
+}
+
 export interface BuildRequest {
   /** Path of the study template on the host's machine. */
   template: string;
@@ -218,6 +228,8 @@ export interface BuildRequest {
 export interface CoordinatorApi {
   /** Kits and every reader's progress, from the workspace of the served study folder. */
   studyOverview(): Promise<StudyOverview>;
+  /** `veil check` for a template on the host's machine: the case x method table, problems and warnings. */
+  checkTemplate(req: { template: string }): Promise<CheckView>;
   /** Starts building a study from a template; poll `job` for progress. */
   startBuild(req: BuildRequest): Promise<JobView>;
   job(req: { id: string }): Promise<JobView>;

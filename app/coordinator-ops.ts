@@ -9,6 +9,8 @@ import { collectBundles } from './blinding/collect.ts';
 import { hasWorkspace, studyOverview } from './coordinator.ts';
 import { JobRegistry } from './jobs.ts';
 import { loadTemplate } from './study/parse-template.ts';
+import { TemplateError } from './study/template.ts';
+import { checkStudy } from './study/check.ts';
 
 export function coordinatorOps(dir: string, mode: 'study' | 'kit', jobs = new JobRegistry()): CoordinatorApi {
   const studyOnly = () => {
@@ -20,10 +22,29 @@ export function coordinatorOps(dir: string, mode: 'study' | 'kit', jobs = new Jo
       studyOnly();
       return studyOverview(dir);
     },
+    async checkTemplate({ template }) {
+      if (mode === 'kit') throw new ApiError('a reading kit cannot check studies', 403);
+      if (typeof template !== 'string' || !template) throw new ApiError('give the path of the study template');
+      let t;
+      try {
+        t = loadTemplate(resolve(template));
+      } catch (e) {
+        if (e instanceof TemplateError) throw new ApiError(e.message);
+        throw e;
+      }
+      const r = await checkStudy(t);
+      return { ok: r.ok, title: r.title, sources: r.sources, problems: r.problems, warnings: r.warnings, blinding: r.blinding };
+    },
     async startBuild({ template, out }) {
       if (mode === 'kit') throw new ApiError('a reading kit cannot build studies', 403);
       if (typeof template !== 'string' || typeof out !== 'string' || !template || !out) throw new ApiError('give the template path and an output folder');
-      const t = loadTemplate(resolve(template));
+      let t;
+      try {
+        t = loadTemplate(resolve(template));
+      } catch (e) {
+        if (e instanceof TemplateError) throw new ApiError(e.message);
+        throw e;
+      }
       return jobs.start('build', (signal, progress) => buildStudy(t, resolve(out), progress, signal));
     },
     async job({ id }) {

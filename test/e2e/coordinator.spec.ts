@@ -52,6 +52,11 @@ test('the coordinator sees progress, collects a bundle and builds a study', asyn
   await page.getByTestId('tab-build').click();
   await page.getByTestId('build-template').fill(join(dir, 'demo.study.yaml'));
   await page.getByTestId('build-out').fill(join(dir, 'second-build'));
+  await expect(page.getByTestId('build-start')).toBeDisabled(); // check first
+  await page.getByTestId('check-start').click();
+  await expect(page.getByTestId('check-result')).toHaveAttribute('data-ok', 'true', { timeout: 60_000 });
+  await expect(page.getByTestId('check-result')).toContainText('case-06');
+  await page.screenshot({ path: 'test-results/screens/coordinator-check.png' });
   await page.getByTestId('build-start').click();
   await expect(page.getByTestId('build-job')).toHaveAttribute('data-state', 'done', { timeout: 30_000 });
   await expect(page.getByTestId('build-job')).toContainText(join(dir, 'second-build', 'kits', 'R1'));

@@ -66,6 +66,23 @@ describe('coordinator operations', () => {
     }
   });
 
+  it('checks a template: the table of sources, then a refusal naming the line of a broken template', async () => {
+    const { dir, template } = writeTinyStudy();
+    await buildStudy(loadTemplate(template), join(dir, 'study'));
+    const api = createApi(join(dir, 'study'));
+    try {
+      const check = await api.checkTemplate({ template });
+      expect(check.ok).toBe(true);
+      expect(check.sources).toHaveLength(9);
+      expect(check.sources[0]).toMatchObject({ case: 'c1', shape: [2, 8, 8] });
+      const { writeFileSync } = await import('node:fs');
+      writeFileSync(join(dir, 'bad.study.yaml'), 'title: x\nseed: -1\n');
+      await expect(api.checkTemplate({ template: join(dir, 'bad.study.yaml') })).rejects.toThrow(/bad\.study\.yaml:2/);
+    } finally {
+      api.close();
+    }
+  });
+
   it('refuses every coordinator operation on a reading kit', async () => {
     const { dir, template } = writeTinyStudy();
     await buildStudy(loadTemplate(template), join(dir, 'study'));

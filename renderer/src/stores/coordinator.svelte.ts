@@ -2,13 +2,15 @@
  * State of the coordinator screens: the study overview, the running build job (polled), and the
  * results of the last collect. The work itself happens behind the API.
  */
-import type { CollectResultView, JobView, StudyOverview } from '../../../app/api-contract.ts';
+import type { CheckView, CollectResultView, JobView, StudyOverview } from '../../../app/api-contract.ts';
 import { api } from '../api-client.ts';
 
 class CoordinatorStore {
   overview = $state<StudyOverview | null>(null);
   overviewError = $state<string | null>(null);
   job = $state<JobView | null>(null);
+  check = $state<CheckView | null>(null);
+  checking = $state(false);
   buildError = $state<string | null>(null);
   collected = $state<CollectResultView[]>([]);
   collecting = $state(false);
@@ -21,6 +23,20 @@ class CoordinatorStore {
       this.overviewError = null;
     } catch (e) {
       this.overviewError = (e as Error).message;
+    }
+  }
+
+  /** Runs `veil check` on the template; the build is offered once it passes. */
+  async runCheck(template: string): Promise<void> {
+    this.buildError = null;
+    this.check = null;
+    this.checking = true;
+    try {
+      this.check = await api.checkTemplate({ template });
+    } catch (e) {
+      this.buildError = (e as Error).message;
+    } finally {
+      this.checking = false;
     }
   }
 
