@@ -16,8 +16,25 @@
  */
 export const DISPLAY_MAX = 4000;
 
+/**
+ * Sorted default-size samples by pixel array: the display window, the item statistics and the
+ * check all ask for the same one, and a sort is the costliest step of each. Volumes' pixels are
+ * not changed after reading, so the cached sample stays right.
+ */
+const sampleCache = new WeakMap<Float32Array, Float32Array>();
+
 /** The finite values of a regular subsample of at most `maxSamples`, sorted ascending. */
 export function sortedSample(values: Float32Array, maxSamples = 200_000): Float32Array {
+  if (maxSamples !== 200_000) return sortSample(values, maxSamples);
+  let cached = sampleCache.get(values);
+  if (!cached) {
+    cached = sortSample(values, maxSamples);
+    sampleCache.set(values, cached);
+  }
+  return cached;
+}
+
+function sortSample(values: Float32Array, maxSamples: number): Float32Array {
   const step = Math.max(1, Math.floor(values.length / maxSamples));
   const buffer = new Float32Array(Math.ceil(values.length / step));
   let n = 0;
