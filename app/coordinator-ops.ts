@@ -9,8 +9,18 @@ import { collectBundles } from './blinding/collect.ts';
 import { hasWorkspace, studyOverview } from './coordinator.ts';
 import { JobRegistry } from './jobs.ts';
 import { loadTemplate } from './study/parse-template.ts';
-import { TemplateError } from './study/template.ts';
+import { TemplateError, type StudyTemplate } from './study/template.ts';
 import { checkStudy } from './study/check.ts';
+
+/** The template at a path on the host; its errors (file, line, key) are the user's to fix. */
+function templateAt(path: string): StudyTemplate {
+  try {
+    return loadTemplate(resolve(path));
+  } catch (e) {
+    if (e instanceof TemplateError) throw new ApiError(e.message);
+    throw e;
+  }
+}
 
 export function coordinatorOps(dir: string, mode: 'study' | 'kit', jobs = new JobRegistry()): CoordinatorApi {
   const studyOnly = () => {
@@ -25,26 +35,13 @@ export function coordinatorOps(dir: string, mode: 'study' | 'kit', jobs = new Jo
     async checkTemplate({ template }) {
       if (mode === 'kit') throw new ApiError('a reading kit cannot check studies', 403);
       if (typeof template !== 'string' || !template) throw new ApiError('give the path of the study template');
-      let t;
-      try {
-        t = loadTemplate(resolve(template));
-      } catch (e) {
-        if (e instanceof TemplateError) throw new ApiError(e.message);
-        throw e;
-      }
-      const r = await checkStudy(t);
+      const r = await checkStudy(templateAt(template));
       return { ok: r.ok, title: r.title, sources: r.sources, problems: r.problems, warnings: r.warnings, blinding: r.blinding };
     },
     async startBuild({ template, out }) {
       if (mode === 'kit') throw new ApiError('a reading kit cannot build studies', 403);
       if (typeof template !== 'string' || typeof out !== 'string' || !template || !out) throw new ApiError('give the template path and an output folder');
-      let t;
-      try {
-        t = loadTemplate(resolve(template));
-      } catch (e) {
-        if (e instanceof TemplateError) throw new ApiError(e.message);
-        throw e;
-      }
+      const t = templateAt(template);
       return jobs.start('build', (signal, progress) => buildStudy(t, resolve(out), progress, signal));
     },
     async job({ id }) {
