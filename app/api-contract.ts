@@ -181,7 +181,7 @@ export interface ReaderProgress {
   kitPath: string;
   items: number;
   sessions: number;
-  /** Items with every question answered, from collected bundles (or simulated answers). */
+  /** Items with at least one answer, from collected bundles (or simulated answers). */
   answered: number;
   sessionsDone: number;
   medianSeconds: number | null;

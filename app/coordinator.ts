@@ -25,7 +25,6 @@ export function studyOverview(dir: string): StudyOverview {
     const db = ws.db;
     const study = db.prepare('SELECT title, seed, generator, design, created_at FROM study WHERE id = 1').get() as
       { title: string; seed: number; generator: string; design: string | null; created_at: string };
-    const questions = (db.prepare('SELECT id FROM question').all() as { id: string }[]).length;
     const kits = db.prepare(`SELECT k.reader_code AS reader, k.kit_id AS kitId, k.path AS path, k.created_at AS createdAt,
         (SELECT COUNT(*) FROM kit_item i WHERE i.reader_code = k.reader_code) AS items,
         (SELECT MAX(session) FROM kit_item i WHERE i.reader_code = k.reader_code) AS sessions
@@ -43,7 +42,8 @@ export function studyOverview(dir: string): StudyOverview {
         e.seconds = a.seconds ?? e.seconds;
         perItem.set(a.item_id, e);
       }
-      const answered = [...perItem.values()].filter((e) => e.n >= questions).length;
+      // An item counts once it has any answer: optional questions may stay empty (as in the reading room, "saved").
+      const answered = perItem.size;
       const bundles = db.prepare('SELECT content, collected_at FROM bundle WHERE reader_code = ? ORDER BY id').all(k.reader) as { content: string; collected_at: string }[];
       const last = bundles.at(-1);
       const sessionEnds = last ? ((JSON.parse(last.content) as ResultsBundle).tables.session_end ?? []) : [];
