@@ -93,6 +93,9 @@ export async function buildStudy(
   rmSync(staging, { recursive: true, force: true });
   mkdirSync(join(staging, KITS_DIR), { recursive: true });
   const ws = openWorkspace(join(staging, WORKSPACE_FILE));
+  // The staging workspace is thrown away on any failure, so it need not reach the disk row by row;
+  // it is made durable once, before it is moved into place.
+  ws.db.pragma('synchronous = OFF');
   // Image writes overlap with reading and converting the next volume; a few volumes' worth at most are in flight.
   let pendingWrites: Promise<void>[] = [];
   try {
@@ -236,6 +239,8 @@ export async function buildStudy(
       });
       audit(ws.db, 'study.built', { out, cases: caseIds.length, readers: template.readers.length, seed: template.seed, generator: GENERATOR_NAME });
     })();
+    ws.db.pragma('synchronous = FULL');
+    ws.db.pragma('wal_checkpoint(TRUNCATE)');
     ws.close();
     renameSync(join(staging, WORKSPACE_FILE), join(out, WORKSPACE_FILE));
     renameSync(join(staging, KITS_DIR), join(out, KITS_DIR));
