@@ -2,10 +2,10 @@
  * The coordinator's screens in Chromium: readers and progress, collecting a results bundle by
  * file picker, and building a new study with a progress bar.
  */
-import { expect, test } from '@playwright/test';
+import { expect, test, type APIRequestContext } from '@playwright/test';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { makeDemo, serve, type ServedStudy } from './host.ts';
+import { makeDemo, serve, type ServedStudy, callApi } from './host.ts';
 
 let dir: string;
 let host: ServedStudy;
@@ -16,11 +16,7 @@ test.beforeAll(async () => {
 });
 test.afterAll(async () => { await host?.stop(); });
 
-async function call(request: import('@playwright/test').APIRequestContext, op: string, data: unknown): Promise<unknown> {
-  const res = await request.post(`${host.origin}/api/${op}`, { data, headers: { Authorization: `Bearer ${host.token}` } });
-  expect(res.status(), await res.text()).toBe(200);
-  return res.json();
-}
+const call = (request: APIRequestContext, op: string, data: unknown) => callApi(request, host, op, data);
 
 test('the coordinator sees progress, collects a bundle and builds a study', async ({ page, request }) => {
   // A reader scores two items and exports a results bundle.

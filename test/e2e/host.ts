@@ -1,4 +1,5 @@
 /** Starts `veil serve` on a fresh demo study as a real child process, as a user would. */
+import { expect, type APIRequestContext } from '@playwright/test';
 import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { cpSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -51,4 +52,11 @@ export async function serve(dir: string): Promise<ServedStudy> {
       child.kill('SIGTERM');
     }),
   };
+}
+
+/** Calls an API operation of a served study as the renderer would, expecting success. */
+export async function callApi(request: APIRequestContext, host: ServedStudy, op: string, data: unknown): Promise<unknown> {
+  const res = await request.post(`${host.origin}/api/${op}`, { data, headers: { Authorization: `Bearer ${host.token}` } });
+  expect(res.status(), await res.text()).toBe(200);
+  return res.json();
 }

@@ -3,12 +3,12 @@
  * is there and drawn; then the analysis screen shows the same tables and figures, filters them and
  * exports the report. Screenshots: test-results/screens/report-html.png, analysis.png.
  */
-import { expect, test } from '@playwright/test';
+import { expect, test, type APIRequestContext } from '@playwright/test';
 import { spawnSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { REPO, makeDemo, serve, type ServedStudy } from './host.ts';
+import { REPO, makeDemo, serve, type ServedStudy, callApi } from './host.ts';
 
 const VEIL = join(REPO, 'bin', 'veil.mjs');
 const TABLES = ['design', 'descriptives', 'distribution', 'comparisons', 'friedman', 'agreement', 'reading-time'];
@@ -24,11 +24,7 @@ test.beforeAll(async () => {
 });
 test.afterAll(async () => { await host?.stop(); });
 
-async function call(request: import('@playwright/test').APIRequestContext, op: string, data: unknown): Promise<unknown> {
-  const res = await request.post(`${host.origin}/api/${op}`, { data, headers: { Authorization: `Bearer ${host.token}` } });
-  expect(res.status(), await res.text()).toBe(200);
-  return res.json();
-}
+const call = (request: APIRequestContext, op: string, data: unknown) => callApi(request, host, op, data);
 
 test('veil report writes an HTML report with every figure and table, and the analysis screen shows them', async ({ page, request }) => {
   test.setTimeout(120_000);
