@@ -49,7 +49,7 @@ export function analysisOps(dir: string, mode: 'study' | 'kit'): AnalysisApi {
       const target = isAbsolute(out) ? out : resolve(dir, out);
       const f = analysis.filter;
       const rows = inputs.ratings.filter((r) => (!f.question || r.question === f.question) && (!f.method || r.method === f.method) && (!f.reader || r.reader === f.reader));
-      return writeReport(target, analysis, rows, ['session', 'seconds', 'source']);
+      return writeReport(target, analysis, rows, ['session', 'seconds', 'source', 'flag', 'comment']);
     },
   };
 }

@@ -146,12 +146,12 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
         const { writeTidyCsv } = await import('./report/tidy-csv.ts');
         const { mkdirSync, writeFileSync } = await import('node:fs');
         mkdirSync(o.out, { recursive: true });
-        writeFileSync(join(o.out, 'ratings.csv'), writeTidyCsv(inputs.ratings, ['session', 'seconds', 'source']));
+        writeFileSync(join(o.out, 'ratings.csv'), writeTidyCsv(inputs.ratings, ['session', 'seconds', 'source', 'flag', 'comment']));
         io.out(`Wrote 0 ratings to ${join(o.out, 'ratings.csv')}; no answers yet in ${workspacePath(dir)}, so no analysis (collect results bundles first).\n`);
         return;
       }
       const analysis = await buildAnalysis(inputs, { resamples: o.bootstrap });
-      const written = writeReport(o.out, analysis, inputs.ratings, ['session', 'seconds', 'source']);
+      const written = writeReport(o.out, analysis, inputs.ratings, ['session', 'seconds', 'source', 'flag', 'comment']);
       const simulated = analysis.simulated;
       io.out(`Wrote ${inputs.ratings.length} ratings to ${join(written.dir, 'ratings.csv')}${simulated ? ` (${simulated} from simulated readers)` : ''}.\n` +
         `Wrote ${analysis.tables.length} tables, ${analysis.figures.length} figures and the HTML report: ${join(written.dir, 'report.html')}\n`);

@@ -42,6 +42,15 @@ function importAnswers(db: Database.Database, b: ResultsBundle, knownItems: Set<
     ins.run(item, r.question_id, r.score, revision, r.seconds ?? null, r.answered_at, r.revision);
     added++;
   }
+  // Comments and flags travel with the scores; like them, each row is taken once.
+  const comment = db.prepare('INSERT OR IGNORE INTO item_comment (item_id, question_id, text, reader_revision) VALUES (?, ?, ?, ?)');
+  for (const r of (b.tables.comment ?? []) as Row[]) {
+    if (knownItems.has(String(r.item_id))) comment.run(r.item_id, r.question_id, r.text, r.revision);
+  }
+  const submission = db.prepare('INSERT OR IGNORE INTO item_submission (item_id, reader_submission, flag, flag_note, submitted_at) VALUES (?, ?, ?, ?, ?)');
+  for (const r of (b.tables.submission ?? []) as Row[]) {
+    if (knownItems.has(String(r.item_id))) submission.run(r.item_id, r.id, r.flag ?? null, r.flag_note ?? null, r.submitted_at);
+  }
   return added;
 }
 

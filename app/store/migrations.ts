@@ -160,6 +160,29 @@ CREATE TABLE calibration_item (
 `,
 });
 
+workspaceMigrations.push({
+  version: 4,
+  description: "collected comments and flags, unblinded with the scores",
+  sql: `
+-- A reader's free-text comments (every revision) and the flags of their submissions, from bundles.
+CREATE TABLE item_comment (
+  item_id TEXT NOT NULL REFERENCES kit_item(item_id),
+  question_id TEXT NOT NULL,
+  text TEXT NOT NULL,
+  reader_revision INTEGER NOT NULL,
+  PRIMARY KEY (item_id, question_id, reader_revision)
+);
+CREATE TABLE item_submission (
+  item_id TEXT NOT NULL REFERENCES kit_item(item_id),
+  reader_submission INTEGER NOT NULL,
+  flag TEXT,
+  flag_note TEXT,
+  submitted_at TEXT NOT NULL,
+  PRIMARY KEY (item_id, reader_submission)
+);
+`,
+});
+
 export const readerMigrations: Migration[] = [
   {
     version: 1,

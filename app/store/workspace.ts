@@ -96,13 +96,20 @@ export interface UnblindedRating {
   session: number;
   seconds: number | null;
   source: string;
+  /** The reader's flag on the item (its latest submission), if any. */
+  flag: string | null;
+  /** The reader's latest comment on this question of the item, if any. */
+  comment: string | null;
 }
 
 /** The latest revision of every answer, unblinded through the key, in a stable order. */
 export function unblindedRatings(db: Database.Database): UnblindedRating[] {
   return db.prepare(`
     SELECT k.case_id AS "case", k.reader_code AS reader, k.method_id AS method, a.question_id AS question,
-           a.score AS score, k.session AS session, a.seconds AS seconds, a.source AS source
+           a.score AS score, k.session AS session, a.seconds AS seconds, a.source AS source,
+           (SELECT s.flag FROM item_submission s WHERE s.item_id = a.item_id ORDER BY s.reader_submission DESC LIMIT 1) AS flag,
+           (SELECT NULLIF(ic.text, '') FROM item_comment ic WHERE ic.item_id = a.item_id AND ic.question_id = a.question_id
+             ORDER BY ic.reader_revision DESC LIMIT 1) AS comment
     FROM answer a
     JOIN (SELECT item_id, question_id, MAX(revision) AS revision FROM answer GROUP BY item_id, question_id) latest
       ON latest.item_id = a.item_id AND latest.question_id = a.question_id AND latest.revision = a.revision

@@ -171,3 +171,30 @@ describe('collect into a workspace that already holds answers', () => {
     ]);
   });
 });
+
+describe('comments and flags travel with the scores', () => {
+  it('are unblinded beside each rating and reach the tidy CSV', async () => {
+    const { dir, template } = writeTinyStudy({ readers: ['R1'] });
+    const { readFileSync: read, writeFileSync: write } = await import('node:fs');
+    write(template, read(template, 'utf8').replace('    text: How sharp?\n', '    text: How sharp?\n    comment: true\n'));
+    const out = join(dir, 'study');
+    await buildStudy(loadTemplate(template), out);
+    const api = createApi(out);
+    let file: string;
+    try {
+      const kit = await api.openKit({ reader: 'R1' });
+      await api.submitAnswer({ reader: 'R1', itemId: kit.items[0].id, scores: { sharpness: 2, noise: 3 }, seconds: 4, comments: { sharpness: 'soft rim at 3 o\'clock' } });
+      await api.submitAnswer({ reader: 'R1', itemId: kit.items[1].id, scores: { sharpness: 4, noise: 4 }, seconds: 4, flag: { reason: 'unrelated-artifact', note: 'motion' } });
+      file = (await api.exportResults({ reader: 'R1' })).file;
+    } finally {
+      api.close();
+    }
+    expect(collectBundles(out, [file])[0].status).toBe('imported');
+    const ws = openWorkspace(join(out, 'workspace.sqlite'), { readonly: true });
+    const rows = unblindedRatings(ws.db);
+    ws.close();
+    expect(rows.filter((r) => r.comment).map((r) => [r.question, r.comment])).toEqual([['sharpness', 'soft rim at 3 o\'clock']]);
+    expect(rows.filter((r) => r.flag).map((r) => r.flag)).toEqual(['unrelated-artifact', 'unrelated-artifact']);
+    expect(collectBundles(out, [file])[0].status).toBe('unchanged');
+  });
+});

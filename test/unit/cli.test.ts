@@ -60,7 +60,7 @@ describe('veil command line', () => {
     expect(JSON.parse(b.stdout).kits).toHaveLength(2);
     const rep = await run(['report', out, '--out', join(dir, 'report')]);
     expect(rep.code).toBe(0);
-    expect(readFileSync(join(dir, 'report', 'ratings.csv'), 'utf8').split(/\r?\n/)[0]).toBe('case,reader,method,question,score,session,seconds,source');
+    expect(readFileSync(join(dir, 'report', 'ratings.csv'), 'utf8').split(/\r?\n/)[0]).toBe('case,reader,method,question,score,session,seconds,source,flag,comment');
 
     const csv = join(dir, 'ratings.csv');
     writeFileSync(csv, 'case,reader,method,question,score\n' + ['c1,R1,m,q,1', 'c1,R2,m,q,2', 'c2,R1,m,q,3', 'c2,R2,m,q,3', 'c3,R1,m,q,5', 'c3,R2,m,q,4'].join('\n') + '\n');
