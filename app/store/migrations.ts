@@ -15,6 +15,14 @@ CREATE TRIGGER ${table}_no_delete BEFORE DELETE ON ${table}
 BEGIN SELECT RAISE(ABORT, 'answers are append-only: they cannot be deleted'); END;
 `;
 
+/** Every database kind keeps the same audit log (what happened, when, with what detail). */
+const AUDIT_TABLE = `CREATE TABLE audit (
+  id INTEGER PRIMARY KEY AUTOINCREMENT,
+  at TEXT NOT NULL,
+  action TEXT NOT NULL,
+  detail TEXT NOT NULL
+);`;
+
 export const workspaceMigrations: Migration[] = [
   {
     version: 1,
@@ -92,12 +100,7 @@ CREATE TABLE answer (
   UNIQUE (item_id, question_id, revision)
 );
 ${appendOnlyAnswers('answer')}
-CREATE TABLE audit (
-  id INTEGER PRIMARY KEY AUTOINCREMENT,
-  at TEXT NOT NULL,
-  action TEXT NOT NULL,
-  detail TEXT NOT NULL
-);
+${AUDIT_TABLE}
 `,
   },
 ];
@@ -203,12 +206,7 @@ CREATE TABLE answer (
   UNIQUE (item_id, question_id, revision)
 );
 ${appendOnlyAnswers('answer')}
-CREATE TABLE audit (
-  id INTEGER PRIMARY KEY AUTOINCREMENT,
-  at TEXT NOT NULL,
-  action TEXT NOT NULL,
-  detail TEXT NOT NULL
-);
+${AUDIT_TABLE}
 `,
   },
 ];
