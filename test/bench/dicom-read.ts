@@ -6,12 +6,15 @@
  * sorting and Float32 rescaling, measured in the same run; best of 3 each, after a warm-up read,
  * so both read from the page cache. Goal: Veil at least 2x faster. Also reports Veil's peak
  * memory (maxRSS) for the read and whether both produced the same pixels (SHA-256 of the
- * Float32 volume).
+ * Float32 volume). Veil runs with the environment the `veil` command gives its volume-reading
+ * commands (glibc's huge-page tunable, bin/huge-pages.mjs).
  */
 import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+// @ts-expect-error a plain ES module of the launchers, without types
+import { withHugePages } from '../../bin/huge-pages.mjs';
 
 const REPO = join(import.meta.dirname, '..', '..');
 const PYTHON = '/usr/bin/python3';
@@ -89,7 +92,7 @@ for (let i = 0; i < a.length; i += 1024) a[i] = 1;
 console.log(performance.now() - t0);`;
 
 function runVeil(folder: string, runs: number): { times: number[]; sha: string; maxRssKb: number; shape: number[] } {
-  const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', VEIL(folder, runs)], { cwd: REPO, encoding: 'utf8', maxBuffer: 1 << 20 });
+  const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', VEIL(folder, runs)], { cwd: REPO, encoding: 'utf8', maxBuffer: 1 << 20, env: withHugePages() });
   if (r.status !== 0) throw new Error(`Veil read failed: ${r.stderr}`);
   return JSON.parse(r.stdout.trim().split('\n').at(-1)!);
 }
@@ -115,7 +118,8 @@ export async function bench(): Promise<string[]> {
     // Warm: RUNS reads in one process; later reads may reuse memory the first one touched.
     const veilWarm = runVeil(folder, RUNS);
     const pyWarm = runPydicom(folder, RUNS);
-    const touch = spawnSync(process.execPath, ['-e', TOUCH], { encoding: 'utf8' });
+    const touch = spawnSync(process.execPath, ['-e', TOUCH], { encoding: 'utf8', env: { ...process.env, GLIBC_TUNABLES: '' } });
+    const touchHuge = spawnSync(process.execPath, ['-e', TOUCH], { encoding: 'utf8', env: withHugePages({ ...process.env, GLIBC_TUNABLES: '' }) });
     const best = (xs: number[]) => Math.min(...xs);
     const vc = best(veilCold.map((r) => r.times[0]));
     const pc = best(pyCold.map((r) => r.times[0]));
@@ -127,7 +131,7 @@ export async function bench(): Promise<string[]> {
       `DICOM series ${veilWarm.shape.join(' x ')} uint16 -> Float32 (${SLICES} files), Veil vs ${pyWarm.versions}; pixels ${same ? 'identical' : 'DIFFERENT'} (SHA-256 of the Float32 volume)`,
       `  cold (one read per fresh process, best of ${RUNS}): Veil ${s(vc)} vs ${s(pc)}: ${(pc / vc).toFixed(1)}x (goal >= 2x)`,
       `  warm (best of ${RUNS} reads in one process): Veil ${s(vw)} vs ${s(pw)}: ${(pw / vw).toFixed(1)}x`,
-      `  first write to a fresh ${(SLICES * SIZE * SIZE * 4 / 2 ** 20).toFixed(0)} MB Float32Array in Node on this machine: ${s(Number(touch.stdout.trim()))} (page faults; NumPy's large arrays use transparent huge pages)`,
+      `  first write to a fresh ${(SLICES * SIZE * SIZE * 4 / 2 ** 20).toFixed(0)} MB Float32Array in Node on this machine: ${s(Number(touch.stdout.trim()))} with 4 KB pages, ${s(Number(touchHuge.stdout.trim()))} with glibc's huge-page tunable (page faults; NumPy asks for huge pages too)`,
       `DICOM series read peak memory (maxRSS of the warm process, Volume ${(SLICES * SIZE * SIZE * 4 / 2 ** 20).toFixed(0)} MB): ${(veilWarm.maxRssKb / 1024).toFixed(0)} MB (goal < 1024 MB)`,
     ];
   } finally {

@@ -1,0 +1,76 @@
+/**
+ * The relaunch of heavy `veil` commands with glibc's huge-page tunable (bin/huge-pages.mjs): the
+ * second process sees the tunable and the same arguments, its exit code comes back, and killing
+ * the first process outright (SIGKILL, which cannot be forwarded) stops the second too.
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+
+const MODULE = join(import.meta.dirname, '..', '..', 'bin', 'huge-pages.mjs');
+
+/** A script file that starts as a `veil` entry point does, then runs `body`. */
+function script(body: string): string {
+  const file = join(mkdtempSync(join(tmpdir(), 'veil-relaunch-')), 'entry.mjs');
+  writeFileSync(file, `
+import { followParent, relaunchWithHugePages } from ${JSON.stringify(MODULE)};
+const code = await relaunchWithHugePages();
+if (code !== null) process.exit(code);
+followParent();
+${body}`);
+  return file;
+}
+
+function alive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+describe.runIf(process.platform === 'linux')('relaunch with huge pages', () => {
+  it('runs the command again with the tunable and the same arguments, and returns its exit code', () => {
+    const body = `console.log(JSON.stringify({ tunables: process.env.GLIBC_TUNABLES, args: process.argv.slice(2) })); process.exit(7);`;
+    const r = spawnSync(process.execPath, [script(body), 'x', '--flag'], {
+      encoding: 'utf8',
+      env: { ...process.env, VEIL_NO_RELAUNCH: '', GLIBC_TUNABLES: 'glibc.malloc.check=0' },
+    });
+    expect(r.status).toBe(7);
+    const out = JSON.parse(r.stdout.trim());
+    expect(out.tunables).toBe('glibc.malloc.check=0:glibc.malloc.hugetlb=1');
+    expect(out.args).toEqual(['x', '--flag']);
+  });
+
+  it('does not relaunch when told not to', () => {
+    const body = `console.log(process.env.GLIBC_TUNABLES ?? 'unset');`;
+    const r = spawnSync(process.execPath, [script(body)], {
+      encoding: 'utf8',
+      env: { ...process.env, VEIL_NO_RELAUNCH: '1', GLIBC_TUNABLES: '' },
+    });
+    expect(r.status).toBe(0);
+    expect(r.stdout.trim()).toBe('');
+  });
+
+  it('stops the relaunched process when the first one is killed with SIGKILL', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'veil-relaunch-'));
+    const pidFile = join(dir, 'pid');
+    const body = `(await import('node:fs')).writeFileSync(${JSON.stringify(pidFile)}, String(process.pid)); setInterval(() => {}, 1000);`;
+    const first = spawn(process.execPath, [script(body)], {
+      stdio: 'ignore',
+      env: { ...process.env, VEIL_NO_RELAUNCH: '' },
+    });
+    const deadline = Date.now() + 10_000;
+    while (!existsSync(pidFile) && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    const second = Number(readFileSync(pidFile, 'utf8'));
+    expect(second).not.toBe(first.pid);
+    expect(alive(second)).toBe(true);
+    first.kill('SIGKILL');
+    const gone = Date.now() + 5_000;
+    while (alive(second) && Date.now() < gone) await new Promise((r) => setTimeout(r, 50));
+    expect(alive(second)).toBe(false);
+  });
+});
