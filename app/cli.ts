@@ -4,21 +4,13 @@
  * Hosts (main/) inject `serve`, so this file stays free of transports.
  */
 import { Command, CommanderError, InvalidArgumentError, Option } from 'commander';
-import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { loadTemplate } from './study/parse-template.ts';
-import { TemplateError, formatTemplateIssue } from './study/template.ts';
-import { checkStudy, formatCheckReport } from './study/check.ts';
-import { loadVolume } from './images/load.ts';
-import { buildStudy, BuildError, type BuildProgress, type BuildSummary } from './blinding/build.ts';
-import { writeDemo } from './demo/demo.ts';
-import { collectBundles } from './blinding/collect.ts';
-import { unlockSession, UnlockError } from './blinding/unlock.ts';
-import { formatBlindingStrength } from './metrics/blinding-strength.ts';
-import { workspacePath } from './store/workspace.ts';
-import { parseTidyCsv } from './report/tidy-csv.ts';
-import { agreementReport, DEFAULT_BOOTSTRAP_RESAMPLES, DEFAULT_BOOTSTRAP_SEED } from './stats/agreement.ts';
-import { formatAgreementTable } from './stats/agreement-table.ts';
+// Each command imports what it needs when it runs: `veil metrics` should not pay for the
+// statistics, nor `veil agreement` for the image readers.
+import { TemplateError } from './study/template.ts';
+import { BuildError } from './blinding/build-error.ts';
+import type { BuildProgress, BuildSummary } from './blinding/build.ts';
+import { DEFAULT_BOOTSTRAP_RESAMPLES, DEFAULT_BOOTSTRAP_SEED } from './stats/bootstrap.ts';
 import { RESEARCH_NOTICE, VEIL_VERSION } from './notice.ts';
 
 export interface CliHooks {
@@ -49,7 +41,8 @@ function progressPrinter(io: CliIO): ((p: BuildProgress) => void) | undefined {
   };
 }
 
-function describeBuild(s: BuildSummary): string {
+async function describeBuild(s: BuildSummary): Promise<string> {
+  const { formatBlindingStrength } = await import('./metrics/blinding-strength.ts');
   const lines = [
     `Built "${s.title}": ${s.cases} cases x ${s.methods} methods, ${s.readers} readers, ${s.itemsPerReader} items per reader in ${s.sessions} session(s).`,
     `Seed ${s.seed}, generator ${s.generator}.`,
@@ -77,6 +70,9 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .description('validate the template and every source: a case x method table, every problem at once, blinding warnings; exit 0 only when a build would work')
     .option('--json', 'machine-readable output (problems and warnings included)')
     .action(async (file: string, o: { json?: boolean }) => {
+      const { loadTemplate } = await import('./study/parse-template.ts');
+      const { formatTemplateIssue } = await import('./study/template.ts');
+      const { checkStudy, formatCheckReport } = await import('./study/check.ts');
       let t;
       try {
         t = loadTemplate(file);
@@ -98,14 +94,17 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .requiredOption('--out <dir>', 'study folder to create')
     .option('--json', 'machine-readable output')
     .action(async (file: string, o: { out: string; json?: boolean }) => {
+      const { loadTemplate } = await import('./study/parse-template.ts');
+      const { buildStudy } = await import('./blinding/build.ts');
       const summary = await buildStudy(loadTemplate(file), o.out, progressPrinter(io));
-      io.out(o.json ? JSON.stringify(summary, null, 2) + '\n' : describeBuild(summary));
+      io.out(o.json ? JSON.stringify(summary, null, 2) + '\n' : await describeBuild(summary));
     });
 
   program.command('collect').argument('<dir>', 'study folder').argument('<results...>', 'results bundles (*.veil-results.json)')
     .description('verify results bundles and unblind their answers into the workspace (one transaction)')
     .option('--json', 'machine-readable output')
     .action(async (dir: string, files: string[], o: { json?: boolean }) => {
+      const { collectBundles } = await import('./blinding/collect.ts');
       const results = collectBundles(dir, files);
       if (o.json) io.out(JSON.stringify({ results }, null, 2) + '\n');
       else {
@@ -122,6 +121,7 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .requiredOption('--session <n>', 'the session to open', (v) => wholeNumber(v, 1))
     .requiredOption('--reason <text>', 'why (kept in the audit log)')
     .action(async (dir: string, o: { reader: string; session: number; reason: string }) => {
+      const { unlockSession, UnlockError } = await import('./blinding/unlock.ts');
       try {
         const file = unlockSession(dir, o.reader, o.session, o.reason);
         io.out(`Session ${o.session} of ${o.reader} opens now. Override written to ${file}; if the reader works on another machine, send them this file for the kit's overrides/ folder.\n`);
@@ -139,6 +139,7 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
       const { loadStudyInputs, AnalysisSettingsError } = await import('./report/study-inputs.ts');
       const { buildAnalysis } = await import('./report/build-report.ts');
       const { writeReport } = await import('./report/write-report.ts');
+      const { workspacePath } = await import('./store/workspace.ts');
       let inputs;
       try { inputs = loadStudyInputs(dir); } catch (e) { throw e instanceof AnalysisSettingsError ? new InputError(e.message) : e; }
       if (inputs.ratings.length === 0) {
@@ -169,6 +170,11 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
       .argParser((v) => wholeNumber(v, 2)).conflicts('template'))
     .option('--json', 'machine-readable output')
     .action(async (file: string, o: { question?: string; method?: string; bootstrap: number; seed: number; template?: string; points?: number; json?: boolean }) => {
+      const { readFileSync } = await import('node:fs');
+      const { loadTemplate } = await import('./study/parse-template.ts');
+      const { parseTidyCsv } = await import('./report/tidy-csv.ts');
+      const { agreementReport } = await import('./stats/agreement.ts');
+      const { formatAgreementTable } = await import('./stats/agreement-table.ts');
       let text: string;
       try { text = readFileSync(file, 'utf8'); } catch (e) { throw new InputError(`${file}: cannot read (${(e as NodeJS.ErrnoException).code ?? (e as Error).message})`); }
       const questions = o.template ? loadTemplate(o.template).questions : null;
@@ -193,16 +199,21 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     }))
     .option('--json', 'machine-readable output')
     .action(async (o: { reference: string; test: string; mask?: string; dataRange?: number; json?: boolean }) => {
-      const { compareVolumes, metricsJson, formatVolumeMetrics } = await import('./metrics/compare-volumes.ts');
+      const { compareVolumesInParallel, metricsJson, formatVolumeMetrics } = await import('./metrics/compare-volumes.ts');
+      const { MetricWorkers } = await import('./metrics/metric-workers.ts');
       const { MetricsError } = await import('./metrics/metrics-error.ts');
-      const [reference, test] = [await loadVolume(o.reference), await loadVolume(o.test)];
-      const mask = o.mask === undefined ? null : o.mask === 'auto' ? 'auto' as const : await loadVolume(o.mask);
+      const { loadVolume } = await import('./images/load.ts');
+      const workers = new MetricWorkers(); // they start while the volumes are read
       try {
-        const r = compareVolumes(reference, test, { mask, dataRange: o.dataRange });
+        const [reference, test] = [await loadVolume(o.reference), await loadVolume(o.test)];
+        const mask = o.mask === undefined ? null : o.mask === 'auto' ? 'auto' as const : await loadVolume(o.mask);
+        const r = await compareVolumesInParallel(reference, test, { mask, dataRange: o.dataRange }, workers);
         io.out(o.json ? JSON.stringify({ ...metricsJson(r), reference: reference.provenance.path, test: test.provenance.path }, null, 2) + '\n'
           : formatVolumeMetrics(r, reference.provenance.path, test.provenance.path));
       } catch (e) {
         throw e instanceof MetricsError ? new InputError(e.message) : e;
+      } finally {
+        await workers.close();
       }
     });
 
@@ -219,9 +230,10 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .requiredOption('--out <dir>', 'folder to write the demo study into')
     .option('--json', 'machine-readable output')
     .action(async (o: { out: string; json?: boolean }) => {
+      const { writeDemo } = await import('./demo/demo.ts');
       const s = await writeDemo(o.out, progressPrinter(io));
       if (o.json) io.out(JSON.stringify(s, null, 2) + '\n');
-      else io.out(`Demo template: ${s.template}\n${describeBuild(s.build)}Simulated readers filled ${s.simulatedAnswers} answers into the workspace (labelled simulated).\n`);
+      else io.out(`Demo template: ${s.template}\n${await describeBuild(s.build)}Simulated readers filled ${s.simulatedAnswers} answers into the workspace (labelled simulated).\n`);
     });
 
   return program;

@@ -27,12 +27,8 @@ import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest }
 
 export const KITS_DIR = 'kits';
 
-export class BuildError extends Error {
-  constructor(public readonly problems: string[]) {
-    super(problems.join('\n'));
-    this.name = 'BuildError';
-  }
-}
+export { BuildError } from './build-error.ts';
+import { BuildError } from './build-error.ts';
 
 export interface BuildProgress { done: number; total: number; what: string }
 

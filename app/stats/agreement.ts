@@ -42,8 +42,8 @@ import { lightKappa } from './light-kappa.ts';
 import { percentAgreement } from './percent-agreement.ts';
 import { categoryCounts, completeRowsOf, completeSubjects, distinctPatterns, observedCategories, type RatingMatrix } from './rating-matrix.ts';
 
-export const DEFAULT_BOOTSTRAP_RESAMPLES = 2000;
-export const DEFAULT_BOOTSTRAP_SEED = 1;
+export { DEFAULT_BOOTSTRAP_RESAMPLES, DEFAULT_BOOTSTRAP_SEED } from './bootstrap.ts';
+import { DEFAULT_BOOTSTRAP_RESAMPLES, DEFAULT_BOOTSTRAP_SEED } from './bootstrap.ts';
 export const POOLED = '*';
 
 export interface AgreementOptions {

@@ -17,6 +17,10 @@
  */
 import type { MT19937 } from '../blinding/mt19937.ts';
 
+/** Resamples and seed of the agreement intervals unless the user says otherwise. */
+export const DEFAULT_BOOTSTRAP_RESAMPLES = 2000;
+export const DEFAULT_BOOTSTRAP_SEED = 1;
+
 export interface BootstrapInterval {
   ci95: [number, number] | null;
   /** Resamples in which the statistic was defined. */
