@@ -247,7 +247,11 @@ function formatShape(shape: number[]): string {
 
 // ---- reading --------------------------------------------------------------------------------
 
-/** Reads a .npy file's bytes. `path` names the file in errors and in the provenance. */
+/**
+ * Reads a .npy file's bytes. `path` names the file in errors and in the provenance. Aligned
+ * float32 data is kept in place when `bytes` is the whole of its buffer, so the caller must not
+ * change those bytes afterwards.
+ */
 export function readNpy(bytes: Uint8Array, path: string): Volume {
   const { dtype, fortran, shape, dataStart } = readHeader(bytes, path);
   const [slices, rows, columns] = shape.length === 2 ? [1, shape[0], shape[1]] : shape;
@@ -261,10 +265,14 @@ export function readNpy(bytes: Uint8Array, path: string): Volume {
 
   const view = new DataView(bytes.buffer, bytes.byteOffset + dataStart, needed);
   const { read, size, little } = dtype;
-  const pixels = new Float32Array(count);
   const native = !fortran && nativeArray(dtype, bytes, dataStart, count);
+  // float32 in this machine's byte order, in bytes that are the whole of their buffer (as a file
+  // read gives them): the volume keeps those bytes instead of a copy.
+  const owned = bytes.byteLength === bytes.buffer.byteLength && native instanceof Float32Array && native.buffer === bytes.buffer;
+  const pixels = owned ? native : new Float32Array(count);
+  if (owned) return volumeOf(pixels);
   if (native) {
-    // Fast path: the data is already in this machine's byte order; a typed-array copy converts natively.
+    // The data is already in this machine's byte order; a typed-array copy converts natively.
     pixels.set(native);
   } else if (!fortran) {
     for (let i = 0; i < count; i++) pixels[i] = read(view, i * size, little);
@@ -277,17 +285,20 @@ export function readNpy(bytes: Uint8Array, path: string): Volume {
       }
     }
   }
+  return volumeOf(pixels);
 
-  return {
-    columns,
-    rows,
-    slices,
-    spacing: [1, 1, 1],
-    orientation: [...IDENTITY_ORIENTATION],
-    pixels,
-    provenance: { path, format: 'npy', sha256: createHash('sha256').update(bytes).digest('hex') },
-    dataType: TYPE_NAMES[dtype.code],
-  };
+  function volumeOf(pixels: Float32Array): Volume {
+    return {
+      columns,
+      rows,
+      slices,
+      spacing: [1, 1, 1],
+      orientation: [...IDENTITY_ORIENTATION],
+      pixels,
+      provenance: { path, format: 'npy', sha256: createHash('sha256').update(bytes).digest('hex') },
+      dataType: TYPE_NAMES[dtype.code],
+    };
+  }
 }
 
 /** Reads a .npy file from disk; the provenance holds its absolute path. */

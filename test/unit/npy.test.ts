@@ -122,6 +122,21 @@ describe('writeNpy', () => {
     expect(Array.from(u.pixels)).toEqual([1, 2, 65535, 4]);
   });
 
+  it('keeps float32 data in the bytes it was given when they are a whole buffer, and copies otherwise', () => {
+    const data = Float32Array.from({ length: 24 }, (_, i) => i / 3);
+    const bytes = writeNpy(data, [2, 3, 4]);
+    expect(bytes.buffer.byteLength).toBe(bytes.byteLength);
+    const kept = readNpy(bytes, 'kept.npy');
+    expect(kept.pixels.buffer).toBe(bytes.buffer);
+    expect(kept.pixels).toEqual(data);
+    // A view into a larger buffer (which its owner may reuse) is copied.
+    const larger = new Uint8Array(bytes.length + 64);
+    larger.set(bytes, 64);
+    const copied = readNpy(larger.subarray(64), 'copied.npy');
+    expect(copied.pixels.buffer).not.toBe(larger.buffer);
+    expect(copied.pixels).toEqual(data);
+  });
+
   it('refuses a shape that does not match the data', () => {
     expect(() => writeNpy(new Float32Array(6), [2, 2])).toThrow(/shape \(2, 2\) holds 4 values but the data has 6/);
     expect(() => writeNpy(new Float32Array(6), [2, -3])).toThrow(/non-negative integers/);
