@@ -4,7 +4,8 @@
  *
  * For `veil build`, prepare a case's reference once (`prepareReference`: data range, mask, and the
  * reference-only parts of NRMSE and HFEN) and compare each method's volume to it
- * (`compareToReference`). `compareVolumes` does both for a single pair (`veil metrics`).
+ * (`compareToReference`). `compareVolumes` does both for a single pair; `compareVolumesInParallel`
+ * does it with worker threads (`veil metrics`; ./metric-workers.ts).
  *
  * Formulas and references: ./psnr.ts, ./ssim.ts, ./nrmse.ts, ./hfen.ts, ./data-range.ts,
  * ./foreground-mask.ts.
@@ -13,12 +14,14 @@ import type { Volume } from '../images/volume.ts';
 import { intensityRange, referenceDataRange } from './data-range.ts';
 import { autoForegroundMask, maskFromVolume, requireSameShape, shapeText } from './foreground-mask.ts';
 import type { ForegroundMask } from './foreground-mask.ts';
-import { HFEN_SIGMA, HFEN_SIZE, differenceLogEnergy, hfenFromParts, referenceLogEnergy } from './hfen.ts';
+import { HFEN_SIGMA, HFEN_SIZE, hfenFromParts, referenceLogEnergy } from './hfen.ts';
 import type { LogEnergy } from './hfen.ts';
+import type { MetricWorkers } from './metric-workers.ts';
 import { MetricsError } from './metrics-error.ts';
 import { nrmseFromSums, referenceEnergy } from './nrmse.ts';
 import { psnrFromMse, squaredError } from './psnr.ts';
-import { SSIM_K1, SSIM_K2, SSIM_SIGMA, SSIM_TRUNCATE, SSIM_WINDOW, combineSsim, ssimSlices } from './ssim.ts';
+import { computeSliceParts, type SliceJob, type SliceParts } from './slice-parts.ts';
+import { SSIM_K1, SSIM_K2, SSIM_SIGMA, SSIM_TRUNCATE, SSIM_WINDOW, combineSsim } from './ssim.ts';
 
 export interface MetricOptions {
   /** L for PSNR and SSIM; default max(reference) − min(reference). */
@@ -79,7 +82,8 @@ export interface VolumeMetrics extends MetricSet {
   conventions: string[];
 }
 
-export function prepareReference(reference: Volume, options: MetricOptions = {}): PreparedReference {
+/** Everything of a prepared reference but its LoG energy (the costly part). */
+function prepareBasics(reference: Volume, options: MetricOptions): Omit<PreparedReference, 'logEnergy'> {
   if (reference.rows < SSIM_WINDOW || reference.columns < SSIM_WINDOW) {
     throw new MetricsError(
       `${reference.provenance.path}: slices of ${reference.rows}x${reference.columns} pixels are too small for SSIM, ` +
@@ -108,22 +112,51 @@ export function prepareReference(reference: Volume, options: MetricOptions = {})
     dataRangeSource: options.dataRange !== undefined ? 'given' : 'reference',
     mask,
     energy: referenceEnergy(reference.pixels, m),
-    logEnergy: referenceLogEnergy(reference.pixels, reference, m, 0, reference.slices),
+  };
+}
+
+export function prepareReference(reference: Volume, options: MetricOptions = {}): PreparedReference {
+  const basics = prepareBasics(reference, options);
+  return { ...basics, logEnergy: referenceLogEnergy(reference.pixels, reference, basics.mask?.mask ?? null, 0, reference.slices) };
+}
+
+/** The slice-parts job of a test volume against a (partly) prepared reference. */
+function sliceJob(prepared: Omit<PreparedReference, 'logEnergy'>, test: Volume | null, referenceLog: boolean): SliceJob {
+  const reference = prepared.volume;
+  if (test) {
+    requireSameShape(reference, test, 'test and reference differ in shape');
+    intensityRange(test); // rejects a test volume with NaN or infinite pixels, naming it
+  }
+  return {
+    reference: reference.pixels, test: test?.pixels ?? null, mask: prepared.mask?.mask ?? null,
+    rows: reference.rows, columns: reference.columns, dataRange: prepared.dataRange, referenceLog,
   };
 }
 
 export function compareToReference(prepared: PreparedReference, test: Volume): VolumeMetrics {
+  return metricsFrom(prepared, test, computeSliceParts(sliceJob(prepared, test, false)));
+}
+
+/** compareToReference with the costly parts spread over worker threads. */
+export async function compareToReferenceInParallel(prepared: PreparedReference, test: Volume, workers: MetricWorkers): Promise<VolumeMetrics> {
+  return metricsFrom(prepared, test, await workers.parts(sliceJob(prepared, test, false)));
+}
+
+/** prepareReference with the LoG energy computed by worker threads. */
+export async function prepareReferenceInParallel(reference: Volume, options: MetricOptions, workers: MetricWorkers): Promise<PreparedReference> {
+  const basics = prepareBasics(reference, options);
+  const parts = await workers.parts(sliceJob(basics, null, true));
+  return { ...basics, logEnergy: parts.referenceLog! };
+}
+
+/** The four metrics from the slice parts and the whole-volume sums. */
+function metricsFrom(prepared: PreparedReference, test: Volume, parts: SliceParts): VolumeMetrics {
   const reference = prepared.volume;
-  requireSameShape(reference, test, 'test and reference differ in shape');
   const hasMask = prepared.mask !== null;
   const m = prepared.mask?.mask ?? null;
-  intensityRange(test); // rejects a test volume with NaN or infinite pixels, naming it
   const error = squaredError(reference.pixels, test.pixels, m);
-  const ssim = combineSsim(ssimSlices(reference.pixels, test.pixels, reference, prepared.dataRange, m, 0, reference.slices), hasMask);
-  const hfen = hfenFromParts(
-    { reference: prepared.logEnergy, difference: differenceLogEnergy(reference.pixels, test.pixels, reference, m, 0, reference.slices) },
-    hasMask,
-  );
+  const ssim = combineSsim(parts.ssim!, hasMask);
+  const hfen = hfenFromParts({ reference: prepared.logEnergy, difference: parts.differenceLog! }, hasMask);
   const L = prepared.dataRange;
   const result: VolumeMetrics = {
     psnr: psnrFromMse(error.sum / error.count, L),
@@ -163,6 +196,17 @@ export function compareToReference(prepared: PreparedReference, test: Volume): V
 export function compareVolumes(reference: Volume, test: Volume, options: MetricOptions = {}): VolumeMetrics {
   requireSameShape(reference, test, 'test and reference differ in shape');
   return compareToReference(prepareReference(reference, options), test);
+}
+
+/**
+ * compareVolumes with the costly parts of both the reference and the pair spread over worker
+ * threads, in one pass over the slices.
+ */
+export async function compareVolumesInParallel(reference: Volume, test: Volume, options: MetricOptions, workers: MetricWorkers): Promise<VolumeMetrics> {
+  requireSameShape(reference, test, 'test and reference differ in shape');
+  const basics = prepareBasics(reference, options);
+  const parts = await workers.parts(sliceJob(basics, test, true));
+  return metricsFrom({ ...basics, logEnergy: parts.referenceLog! }, test, parts);
 }
 
 const num = (v: number): string => (Number.isFinite(v) ? Number(v.toPrecision(6)).toString() : String(v));

@@ -7,8 +7,9 @@
  * Two comparisons, each the best of five alternating runs:
  * - whole process: `veil metrics --json` (Node start, tsx, both .npy files read, all four metrics)
  *   against `/usr/bin/python3` importing scikit-image, loading both arrays and computing SSIM;
- * - in process: Veil reading both files and computing the four metrics, against the same Python
- *   process's time for np.load and SSIM (interpreter start and imports left out on both sides).
+ * - in process: Veil reading both files and computing the four metrics (worker threads started
+ *   before the reads, as `veil metrics` does), against the same Python process's time for np.load
+ *   and SSIM (interpreter start and imports left out on both sides).
  * The arrays (an invented phantom with noise; the test blurred and noisier) are written by NumPy
  * into a temporary folder at bench time. Veil's SSIM is checked against scikit-image's on them.
  */
@@ -17,7 +18,8 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { loadVolume } from '../../app/images/load.ts';
-import { compareToReference, prepareReference } from '../../app/metrics/compare-volumes.ts';
+import { compareToReferenceInParallel, prepareReferenceInParallel } from '../../app/metrics/compare-volumes.ts';
+import { MetricWorkers, defaultWorkerCount } from '../../app/metrics/metric-workers.ts';
 import { fmt } from './stats.ts';
 
 const REPO = join(import.meta.dirname, '..', '..');
@@ -84,12 +86,14 @@ export async function bench(): Promise<string[]> {
       veilSsim = (JSON.parse(v.stdout) as { ssim: number }).ssim;
 
       const t0 = performance.now();
+      const workers = new MetricWorkers();
       const [a, b] = [await loadVolume(ref), await loadVolume(test)];
       const t1 = performance.now();
-      const prepared = prepareReference(a);
+      const prepared = await prepareReferenceInParallel(a, {}, workers);
       const t2 = performance.now();
-      const r = compareToReference(prepared, b);
+      const r = await compareToReferenceInParallel(prepared, b, workers);
       const t3 = performance.now();
+      await workers.close();
       veilInner.push(t3 - t0);
       parts.push([t1 - t0, t2 - t1, t3 - t2]);
       if (Math.abs(r.ssim - veilSsim) > 1e-12) throw new Error('in-process and command-line SSIM differ');
@@ -104,7 +108,7 @@ export async function bench(): Promise<string[]> {
     const ratio = (a: number[], b: number[]): string => `${(best(b) / best(a)).toFixed(2)}x`;
     const [read, prepare, compare] = parts[veilInner.indexOf(best(veilInner))];
     return [
-      'metrics, 64 x 320 x 320 float32 pair (goal: Veil at least 2x as fast as scikit-image SSIM alone)',
+      `metrics, 64 x 320 x 320 float32 pair (goal: Veil at least 2x as fast as scikit-image SSIM alone); Veil on ${defaultWorkerCount() + 1} threads`,
       `  whole process: veil metrics (PSNR, SSIM, NRMSE, HFEN) ${fmt(best(veilWhole))}  vs  python3 + scikit-image SSIM alone ${fmt(best(pyWhole))}  -> Veil ${ratio(veilWhole, pyWhole)} as fast`,
       `  in process:    read + four metrics ${fmt(best(veilInner))}  vs  np.load + SSIM alone ${fmt(best(pyInner))}  -> Veil ${ratio(veilInner, pyInner)} as fast`,
       `  Veil in process, fastest run: read both files ${fmt(read)}; reference (data range, energy, LoG) ${fmt(prepare)}; ` +
