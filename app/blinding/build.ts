@@ -3,18 +3,18 @@
  * reader. Everything is written into a staging folder first and moved into place at the end, so
  * a failed build leaves the output folder as it was.
  */
-import { existsSync, mkdirSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, readdirSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { writeFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import type { StudyTemplate } from '../study/template.ts';
 import { resolveCases } from '../study/cases.ts';
 import { loadVolume } from '../images/load.ts';
-import { resampleInPlane } from '../images/resample.ts';
-import { displayPolicy, type DisplaySpec } from '../study/template.ts';
+import { displayPolicy } from '../study/template.ts';
+import { availableParallelism } from 'node:os';
 import { writeNpy } from '../images/npy.ts';
-import type { Volume } from '../images/volume.ts';
 import { openWorkspace, WORKSPACE_FILE, writeKit, writeKitItems, writeMetric, writeSeries, writeStudy } from '../store/workspace.ts';
-import { StudyMetrics } from '../metrics/study-metrics.ts';
+import { studyBlinding } from '../metrics/case-metrics.ts';
+import type { ItemFeatures } from '../metrics/blinding-strength.ts';
 import type { BlindingStrength } from '../metrics/blinding-strength.ts';
 import { audit } from '../store/open.ts';
 import { readingSchedule, summarizeDesign, type DesignSummary, type ScheduledItem } from './design.ts';
@@ -22,7 +22,9 @@ import { newSigningKey, sha256Hex, writeKitIntegrity, type KitFileEntry } from '
 import { randomBytes } from 'node:crypto';
 import { drawOpaqueIds, GENERATOR_NAME } from './streams.ts';
 import { blackOut, burnedInDecision } from './burned-in.ts';
-import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16, type DisplayAnchor } from './display-scale.ts';
+import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16 } from './display-scale.ts';
+import { makeCaseImages, type CaseDone, type CaseImage, type CaseJob } from './case-images.ts';
+import { CaseWorkers } from './build-workers.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
 export const KITS_DIR = 'kits';
@@ -52,23 +54,83 @@ export interface BuildSummary {
   kits: { reader: string; kitId: string; path: string; items: number; perSession: number[] }[];
 }
 
-/**
- * Why a method cannot be shown on the case's grid (the reference's, else the first method's), or
- * null. A different slice count is always refused; a different matrix only with a reference and
- * `display.matching: none` (without a reference, each method keeps its matrix; `veil check` warns).
- */
-function gridMismatch(grid: Volume, v: Volume, display: DisplaySpec, hasReference: boolean): string | null {
-  const shapes = `is ${v.slices}x${v.rows}x${v.columns} but ${grid.provenance.path} is ${grid.slices}x${grid.rows}x${grid.columns} (slices x rows x columns)`;
-  if (v.slices !== grid.slices) return `${shapes}; every method of a case must have the same slices`;
-  if ((v.rows !== grid.rows || v.columns !== grid.columns) && display.matching === 'none' && hasReference) {
-    return `${shapes}; set display: {matching: reference-grid} in the template to resample every method to the reference's matrix`;
+export interface BuildOptions {
+  /**
+   * Worker threads that make the cases' images; 0 makes them in this thread. Default: one per
+   * core when the sources hold at least PARALLEL_FROM_BYTES, else 0 (starting workers would cost
+   * more than they save).
+   */
+  threads?: number;
+}
+
+/** Sources of at least this many bytes in all are built on worker threads by default. */
+export const PARALLEL_FROM_BYTES = 64 * 2 ** 20;
+/** Pixels that the cases running at once may hold together; more cases run only while under it. */
+const PARALLEL_MEMORY_BUDGET = 512 * 2 ** 20;
+
+function bytesAt(path: string): number {
+  try {
+    const st = statSync(path);
+    if (!st.isDirectory()) return st.size;
+    return readdirSync(path, { withFileTypes: true }).reduce((n, e) => n + (e.isFile() ? statSync(join(path, e.name)).size : 0), 0);
+  } catch {
+    return 0; // the reader will say what is wrong with it
   }
-  return null;
+}
+
+function defaultBuildThreads(jobs: CaseJob[]): number {
+  let total = 0;
+  for (const j of jobs) {
+    for (const p of [j.reference, ...j.methods.map((m) => m.path)]) if (p) total += bytesAt(p);
+    if (total >= PARALLEL_FROM_BYTES) return availableParallelism();
+  }
+  return 0;
+}
+
+/**
+ * Makes every case's images, on the workers when there are any: one case first, then as many
+ * at once as the workers and the memory budget allow (sized on the largest case seen so far).
+ * `onDone` gets each finished case with its index. The first error stops the build.
+ */
+async function runCases(
+  jobs: CaseJob[],
+  workers: CaseWorkers | null,
+  onImage: (caseIndex: number, image: CaseImage) => Promise<void>,
+  onDone: (caseIndex: number, done: CaseDone) => void,
+  signal?: AbortSignal,
+): Promise<void> {
+  if (!workers) {
+    for (const [i, job] of jobs.entries()) onDone(i, await makeCaseImages(job, (img) => onImage(i, img), signal));
+    return;
+  }
+  let peak = 0;
+  const running = new Set<Promise<void>>();
+  let failure: unknown = null;
+  for (const [i, job] of jobs.entries()) {
+    const limit = peak === 0 ? 1 : Math.max(1, Math.min(workers.size, Math.floor(PARALLEL_MEMORY_BUDGET / peak)));
+    while (running.size >= limit && failure === null) await Promise.race(running);
+    if (failure !== null) break;
+    signal?.throwIfAborted();
+    const p: Promise<void> = workers.run(job, (img) => onImage(i, img)).then(
+      (done) => {
+        peak = Math.max(peak, done.peakBytes);
+        onDone(i, done);
+      },
+      (e: unknown) => {
+        failure ??= e;
+      },
+    ).finally(() => running.delete(p));
+    running.add(p);
+  }
+  // On a failure the cases still running are not waited for: closing the workers stops them.
+  while (running.size > 0 && failure === null) await Promise.race(running);
+  if (failure !== null) throw failure;
+  signal?.throwIfAborted();
 }
 
 /** `signal` cancels the build between volumes; a cancelled build leaves the output folder as it was. */
 export async function buildStudy(
-  template: StudyTemplate, outDir: string, onProgress?: (p: BuildProgress) => void, signal?: AbortSignal,
+  template: StudyTemplate, outDir: string, onProgress?: (p: BuildProgress) => void, signal?: AbortSignal, options: BuildOptions = {},
 ): Promise<BuildSummary> {
   const out = resolve(outDir);
   const resolution = resolveCases(template);
@@ -127,49 +189,69 @@ export async function buildStudy(
     })();
 
     const display = displayPolicy(template);
-    const metrics = new StudyMetrics({ percentiles: display.percentiles, includeScale: display.intensity === 'none' });
+    const features: ItemFeatures[] = [];
+    const metricNotes: string[] = [];
     let metricCount = 0;
-    for (const c of resolution.cases) {
-      let grid: Volume | null = null;
-      let anchor: DisplayAnchor | null = null;
-      metrics.startCase(null);
-      if (c.reference) {
-        const ref = await loadVolume(c.reference);
-        grid = ref;
-        anchor = { bounds: percentileWindow(ref.pixels, display.percentiles), pixels: display.intensity === 'match-reference' ? ref.pixels : null };
-        seriesIds.set(`${c.caseId}\u0000`, writeSeries(ws.db, c.caseId, null, ref));
-        metrics.startCase(ref);
-        onProgress?.({ done: ++done, total, what: `case ${c.caseId}: reference` });
+
+    // Kit files are written as each image arrives; workspace rows are written case by case in the
+    // template's order, whichever case finishes first, so that two builds give the same rows.
+    const waitingRows = new Map<number, { images: CaseImage[]; done: CaseDone | null }>();
+    let nextRows = 0;
+    const writeRowsInOrder = () => {
+      for (let w = waitingRows.get(nextRows); w?.done; w = waitingRows.get(nextRows)) {
+        for (const img of w.images) {
+          seriesIds.set(`${img.caseId}\u0000${img.kind === 'method' ? img.methodId : ''}`,
+            writeSeries(ws.db, img.caseId, img.kind === 'method' ? img.methodId : null, img.series));
+          if (img.kind === 'method' && img.metrics) {
+            writeMetric(ws.db, img.caseId, img.methodId, img.metrics.row.values, img.metrics.detail);
+            metricCount++;
+          }
+        }
+        metricNotes.push(...w.done.metricNotes);
+        waitingRows.delete(nextRows++);
       }
-      for (const methodId of methodIds) {
-        signal?.throwIfAborted();
-        await drainWrites(4 * template.readers.length);
-        const source = await loadVolume(c.methods[methodId]);
-        const mismatch = grid && gridMismatch(grid, source, display, !!c.reference);
-        if (mismatch) throw new BuildError([`case ${c.caseId}: ${methodId} (${source.provenance.path}) ${mismatch}`]);
-        grid ??= source;
-        seriesIds.set(`${c.caseId}\u0000${methodId}`, writeSeries(ws.db, c.caseId, methodId, source));
-        // The display policy (design.md): the common grid first, then the intensity mapping.
-        const v = display.matching === 'reference-grid' ? resampleInPlane(source, grid.rows, grid.columns) : source;
-        anchor ??= { bounds: percentileWindow(v.pixels, display.percentiles), pixels: null };
-        const m = metrics.addMethod(c.caseId, methodId, v);
-        if (m) { writeMetric(ws.db, c.caseId, methodId, m.row.values, m.detail); metricCount++; }
-        const shown = toDisplayUint16(v.pixels, displayMapFor(display.intensity, display.percentiles, v.pixels, anchor));
-        const burned = burnedInDecision(template.burned_in, !!source.burnedIn, `case ${c.caseId}: ${methodId} (${source.provenance.path})`);
-        if (burned.problem) throw new BuildError([burned.problem]);
-        if (burned.apply) blackOut(shown.data, v.rows, v.columns, v.slices, template.burned_in!);
-        const bytes = writeNpy(shown.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
-        const sha256 = sha256Hex(bytes);
-        for (const { it, view } of itemsByPair.get(`${c.caseId}\u0000${methodId}`) ?? []) {
-          const image = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
-          pendingWrites.push(writeFile(join(staging, KITS_DIR, it.reader, image), bytes));
-          imageHashes.get(it.reader)!.set(image, { path: image, bytes: bytes.length, sha256 });
+    };
+    const takeImage = async (caseIndex: number, img: CaseImage): Promise<void> => {
+      const rows = waitingRows.get(caseIndex) ?? { images: [], done: null };
+      waitingRows.set(caseIndex, rows);
+      if (img.kind === 'method') {
+        const { image, methodId } = img;
+        // Kept for the workspace rows without the image bytes.
+        rows.images.push({ ...img, image: { ...image, bytes: new Uint8Array(0) } });
+        features.push({ case: img.caseId, method: methodId, stats: img.stats });
+        for (const { it, view } of itemsByPair.get(`${img.caseId}\u0000${methodId}`) ?? []) {
+          const file = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
+          pendingWrites.push(writeFile(join(staging, KITS_DIR, it.reader, file), image.bytes));
+          imageHashes.get(it.reader)!.set(file, { path: file, bytes: image.bytes.length, sha256: image.sha256 });
           const entry = kitItems.get(it.reader)!.get(it.itemId) ?? { id: it.itemId, session: it.session, views: [] };
-          entry.views[view] = { image, columns: v.columns, rows: v.rows, slices: v.slices, spacing: v.spacing, window: shown.window };
+          entry.views[view] = { image: file, columns: image.columns, rows: image.rows, slices: image.slices, spacing: image.spacing, window: image.window };
           kitItems.get(it.reader)!.set(it.itemId, entry);
         }
-        onProgress?.({ done: ++done, total, what: `case ${c.caseId}: ${methodId}` });
+        onProgress?.({ done: ++done, total, what: `case ${img.caseId}: ${methodId}` });
+        await drainWrites(4 * template.readers.length);
+      } else {
+        rows.images.push(img);
+        onProgress?.({ done: ++done, total, what: `case ${img.caseId}: reference` });
       }
+    };
+    const jobs: CaseJob[] = resolution.cases.map((c) => ({
+      caseId: c.caseId,
+      reference: c.reference ?? null,
+      methods: methodIds.map((id) => ({ id, path: c.methods[id] })),
+      display: { matching: display.matching, intensity: display.intensity, percentiles: display.percentiles },
+      burnedIn: template.burned_in,
+    }));
+    const threads = options.threads ?? defaultBuildThreads(jobs);
+    const workers = threads > 0 ? new CaseWorkers(threads) : null;
+    try {
+      await runCases(jobs, workers, takeImage, (i, d) => {
+        const rows = waitingRows.get(i) ?? { images: [], done: null };
+        rows.done = d;
+        waitingRows.set(i, rows);
+        writeRowsInOrder();
+      }, signal);
+    } finally {
+      await workers?.close();
     }
 
     // Calibration items: read first by every reader, in the template's order, each with its own opaque id.
@@ -201,7 +283,7 @@ export async function buildStudy(
     }
 
     await drainWrites(0);
-    const blinding = metrics.blinding(template.seed);
+    const blinding = studyBlinding(features, template.seed);
     ws.db.prepare('UPDATE study SET blinding = ? WHERE id = 1').run(blinding ? JSON.stringify(blinding) : null);
     const createdAt = new Date().toISOString();
     const kits: BuildSummary['kits'] = [];
@@ -245,7 +327,7 @@ export async function buildStudy(
       title: template.title, seed: template.seed, generator: GENERATOR_NAME, cases: caseIds.length,
       methods: methodIds.length, readers: template.readers.length, sessions: template.design.sessions,
       itemsPerReader: schedule.length / template.readers.length, design,
-      metrics: metricCount, metricNotes: metrics.skipped, blinding, workspace: join(out, WORKSPACE_FILE), kits,
+      metrics: metricCount, metricNotes, blinding, workspace: join(out, WORKSPACE_FILE), kits,
     };
   } catch (e) {
     ws.close();

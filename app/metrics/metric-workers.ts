@@ -8,7 +8,8 @@
  * to the calling thread.
  */
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
+import type { Worker } from 'node:worker_threads';
+import { startWorker } from '../worker-thread.ts';
 import { computeSliceParts, mergeSliceParts, sliceRange, slicesOf, type SliceJob, type SliceParts } from './slice-parts.ts';
 
 /** Pairs smaller than this (voxels) are computed in the calling thread. */
@@ -48,7 +49,7 @@ export class MetricWorkers {
    */
   constructor(count = defaultWorkerCount(), private readonly minVoxels = MIN_VOXELS_TO_SPLIT) {
     for (let i = 0; i < count; i++) {
-      const w = new Worker(new URL('./metric-worker.cjs', import.meta.url));
+      const w = startWorker(new URL('./metric-worker.cjs', import.meta.url));
       w.on('message', (m: Reply) => {
         const p = this.pending.get(m.id);
         if (!p) return;

@@ -33,7 +33,10 @@ export function writeStudy(db: Database.Database, t: StudyTemplate, templateText
   audit(db, 'study.created', { title: t.title, seed: t.seed, template: t.file });
 }
 
-export function writeSeries(db: Database.Database, caseId: string, methodId: string | null, v: Volume): number {
+/** What the workspace records of a source volume. */
+export type SeriesRecord = Pick<Volume, 'provenance' | 'columns' | 'rows' | 'slices' | 'spacing'>;
+
+export function writeSeries(db: Database.Database, caseId: string, methodId: string | null, v: SeriesRecord): number {
   const res = db.prepare(`INSERT INTO series (case_id, method_id, role, path, format, sha256, columns, rows, slices, spacing)
     VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`).run(caseId, methodId, methodId ? 'method' : 'reference', v.provenance.path,
     v.provenance.format, v.provenance.sha256, v.columns, v.rows, v.slices, JSON.stringify(v.spacing));

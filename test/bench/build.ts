@@ -3,13 +3,16 @@
  * (so every volume is written 5 times, once per kit). Reported as bytes of kit images written per
  * second against `cp -r` copying the same number of bytes in the same run (goal: at least half of
  * cp's rate), and the peak resident memory of the build process (goal: under 1 GB).
- * The build runs in a child process so its peak memory (getrusage maxRSS) is its own.
+ * The build runs in a child process so its peak memory (getrusage maxRSS, worker threads included)
+ * is its own, with the environment `veil build` gives itself (bin/huge-pages.mjs).
  */
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { writeNpy } from '../../app/images/npy.ts';
+// @ts-expect-error a plain ES module of the launchers, without types
+import { withHugePages } from '../../bin/huge-pages.mjs';
 
 const REPO = join(import.meta.dirname, '..', '..');
 const CASES = 40;
@@ -60,7 +63,7 @@ export async function bench(): Promise<string[]> {
       await buildStudy(loadTemplate(${JSON.stringify(join(root, 'bench.study.yaml'))}), ${JSON.stringify(join(root, 'out'))});
       const ms = performance.now() - t0;
       console.log(JSON.stringify({ ms, maxRssKb: process.resourceUsage().maxRSS }));`;
-    const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], { cwd: REPO, encoding: 'utf8', maxBuffer: 1 << 24 });
+    const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], { cwd: REPO, encoding: 'utf8', maxBuffer: 1 << 24, env: withHugePages() });
     if (r.status !== 0) throw new Error(`build bench failed: ${r.stderr}`);
     const { ms, maxRssKb } = JSON.parse(r.stdout.trim().split('\n').at(-1)!) as { ms: number; maxRssKb: number };
     const written = dirBytes(join(root, 'out', 'kits'));

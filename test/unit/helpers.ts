@@ -10,14 +10,15 @@ export function tempDir(prefix = 'veil-test-'): string {
 
 export interface TinyStudy { dir: string; template: string }
 
-/** Three cases, two methods and a reference, 2 slices of 8x8; two readers, two questions. */
-export function writeTinyStudy(opts: { readers?: string[]; sessions?: number; seed?: number; extraYaml?: string } = {}): TinyStudy {
+/** Three cases, two methods and a reference, 2 slices of 8x8 (or `shape`); two readers, two questions. */
+export function writeTinyStudy(opts: { readers?: string[]; sessions?: number; seed?: number; extraYaml?: string; shape?: [number, number, number] } = {}): TinyStudy {
   const dir = tempDir();
-  const shape = [2, 8, 8];
+  const shape = opts.shape ?? [2, 8, 8];
+  const voxels = shape[0] * shape[1] * shape[2];
   for (const c of ['c1', 'c2', 'c3']) {
     mkdirSync(join(dir, 'data', c), { recursive: true });
     for (const [name, k] of [['ref', 1], ['a', 2], ['b', 3]] as const) {
-      const px = new Float32Array(128).map((_, i) => ((i * k) % 17) + (c === 'c2' ? 5 : 0));
+      const px = new Float32Array(voxels).map((_, i) => ((i * k) % 17) + (c === 'c2' ? 5 : 0));
       writeFileSync(join(dir, 'data', c, `${name}.npy`), writeNpy(px, shape));
     }
   }
