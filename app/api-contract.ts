@@ -222,6 +222,8 @@ export interface BuildRequest {
   template: string;
   /** Folder to create the study in (workspace.sqlite and kits/). */
   out: string;
+  /** Also write each kit as kits/<reader>.zip for transfer. */
+  zip?: boolean;
 }
 
 /** The coordinator's operations. They refuse in kit mode: a kit holds no key. */

@@ -51,7 +51,7 @@ async function describeBuild(s: BuildSummary): Promise<string> {
       (s.design.leftCount ? `; on the left ${Object.entries(s.design.leftCount).map(([m, n]) => `${m} ${n}`).join(', ')}` : '') +
       (Number.isFinite(s.design.minSameCaseGap) ? `; items of one case at least ${s.design.minSameCaseGap} apart` : '; each case at most once a session') + '.',
     `Workspace (coordinator only, holds the key): ${s.workspace}`,
-    ...s.kits.map((k) => `Kit for ${k.reader}: ${k.path} (${k.items} items; per session ${k.perSession.join(' / ')})`),
+    ...s.kits.map((k) => `Kit for ${k.reader}: ${k.path} (${k.items} items; per session ${k.perSession.join(' / ')})${k.zip ? `; for transfer: ${k.zip}` : ''}`),
     s.metrics ? `Image metrics against the reference for ${s.metrics} items (stored in the workspace only).` : 'No image metrics (no reference).',
     ...s.metricNotes,
     s.blinding ? formatBlindingStrength(s.blinding) : 'Blinding-strength check: needs at least two cases and two methods.',
@@ -92,11 +92,12 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
   program.command('build').argument('<template>', 'study template (*.study.yaml)')
     .description('import sources, write DIR/workspace.sqlite and one reading kit per reader under DIR/kits/')
     .requiredOption('--out <dir>', 'study folder to create')
+    .option('--zip', 'also write each kit as kits/<reader>.zip for transfer')
     .option('--json', 'machine-readable output')
-    .action(async (file: string, o: { out: string; json?: boolean }) => {
+    .action(async (file: string, o: { out: string; zip?: boolean; json?: boolean }) => {
       const { loadTemplate } = await import('./study/parse-template.ts');
       const { buildStudy } = await import('./blinding/build.ts');
-      const summary = await buildStudy(loadTemplate(file), o.out, progressPrinter(io));
+      const summary = await buildStudy(loadTemplate(file), o.out, progressPrinter(io), undefined, { zip: o.zip });
       io.out(o.json ? JSON.stringify(summary, null, 2) + '\n' : await describeBuild(summary));
     });
 

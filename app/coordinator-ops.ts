@@ -38,11 +38,11 @@ export function coordinatorOps(dir: string, mode: 'study' | 'kit', jobs = new Jo
       const r = await checkStudy(templateAt(template));
       return { ok: r.ok, title: r.title, sources: r.sources, problems: r.problems, warnings: r.warnings, blinding: r.blinding };
     },
-    async startBuild({ template, out }) {
+    async startBuild({ template, out, zip }) {
       if (mode === 'kit') throw new ApiError('a reading kit cannot build studies', 403);
       if (typeof template !== 'string' || typeof out !== 'string' || !template || !out) throw new ApiError('give the template path and an output folder');
       const t = templateAt(template);
-      return jobs.start('build', (signal, progress) => buildStudy(t, resolve(out), progress, signal));
+      return jobs.start('build', (signal, progress) => buildStudy(t, resolve(out), progress, signal, { zip: zip === true }));
     },
     async job({ id }) {
       return jobs.get(id);

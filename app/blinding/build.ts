@@ -25,6 +25,7 @@ import { blackOut, burnedInDecision } from './burned-in.ts';
 import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16 } from './display-scale.ts';
 import { makeCaseImages, type CaseDone, type CaseImage, type CaseJob } from './case-images.ts';
 import { CaseWorkers } from './build-workers.ts';
+import { zipKit } from './kit-zip.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
 export const KITS_DIR = 'kits';
@@ -51,7 +52,8 @@ export interface BuildSummary {
   /** Could readers tell the methods apart from simple image statistics? Null with fewer than two cases. */
   blinding: BlindingStrength | null;
   workspace: string;
-  kits: { reader: string; kitId: string; path: string; items: number; perSession: number[] }[];
+  /** `zip`: the kit as one archive for transfer (`BuildOptions.zip`). */
+  kits: { reader: string; kitId: string; path: string; zip?: string; items: number; perSession: number[] }[];
 }
 
 export interface BuildOptions {
@@ -61,6 +63,8 @@ export interface BuildOptions {
    * more than they save).
    */
   threads?: number;
+  /** Also write each kit as `kits/<reader>.zip` for transfer (./kit-zip.ts). */
+  zip?: boolean;
 }
 
 /** Sources of at least this many bytes in all are built on worker threads by default. */
@@ -319,6 +323,14 @@ export async function buildStudy(
     })();
     ws.db.pragma('synchronous = FULL');
     ws.db.pragma('wal_checkpoint(TRUNCATE)');
+    if (options.zip) {
+      for (const k of kits) {
+        signal?.throwIfAborted();
+        onProgress?.({ done, total, what: `kit ${k.reader}: zip for transfer` });
+        await zipKit(join(staging, KITS_DIR, k.reader), join(staging, KITS_DIR, `${k.reader}.zip`));
+        k.zip = join(out, KITS_DIR, `${k.reader}.zip`);
+      }
+    }
     ws.close();
     renameSync(join(staging, WORKSPACE_FILE), join(out, WORKSPACE_FILE));
     renameSync(join(staging, KITS_DIR), join(out, KITS_DIR));

@@ -46,7 +46,8 @@ export function sha256Hex(bytes: Uint8Array): string {
   return createHash('sha256').update(bytes).digest('hex');
 }
 
-function listFiles(dir: string, root = dir): string[] {
+/** The kit's files that integrity.json lists (slash-separated paths, sorted). */
+export function listFiles(dir: string, root = dir): string[] {
   const out: string[] = [];
   for (const e of readdirSync(dir, { withFileTypes: true })) {
     const p = join(dir, e.name);

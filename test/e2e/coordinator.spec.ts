@@ -1,9 +1,9 @@
 /**
  * The coordinator's screens in Chromium: readers and progress, collecting a results bundle by
- * file picker, and building a new study with a progress bar.
+ * file picker, and building a new study (kits also zipped for transfer) with a progress bar.
  */
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { readFileSync } from 'node:fs';
+import { readFileSync, statSync } from 'node:fs';
 import { join } from 'node:path';
 import { makeDemo, serve, type ServedStudy, callApi } from './host.ts';
 
@@ -53,9 +53,13 @@ test('the coordinator sees progress, collects a bundle and builds a study', asyn
   await expect(page.getByTestId('check-result')).toHaveAttribute('data-ok', 'true', { timeout: 60_000 });
   await expect(page.getByTestId('check-result')).toContainText('case-06');
   await page.screenshot({ path: 'test-results/screens/coordinator-check.png' });
+  await page.getByTestId('build-zip').check();
   await page.getByTestId('build-start').click();
   await expect(page.getByTestId('build-job')).toHaveAttribute('data-state', 'done', { timeout: 30_000 });
   await expect(page.getByTestId('build-job')).toContainText(join(dir, 'second-build', 'kits', 'R1'));
+  // Each kit also as one archive for transfer, named on the screen and on disk.
+  await expect(page.getByTestId('kit-zip').first()).toHaveText(join(dir, 'second-build', 'kits', 'R1.zip'));
+  expect(statSync(join(dir, 'second-build', 'kits', 'R1.zip')).size).toBeGreaterThan(1000);
   await page.screenshot({ path: 'test-results/screens/coordinator-build.png' });
 
   await page.getByTestId('build-out').fill(join(dir, 'second-build'));

@@ -4,12 +4,14 @@
  * distinctive value in every text-bearing attribute of the DICOM data dictionary, a superset of
  * the text attributes of Table E.1-1, plus private tags, free text and sequences. We build kits
  * from them, read in the reading room, export a results bundle, and scan every byte of every file
- * that can leave the site (inflating gzip content) and every path: zero hits.
+ * that can leave the site (inflating gzip content and the members of the kits' zip archives) and
+ * every path: zero hits.
  */
 import { mkdtempSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
 import { gunzipSync } from 'node:zlib';
+import { unzipSync } from 'fflate';
 import { describe, expect, it } from 'vitest';
 import { createApi } from '../../app/api.ts';
 import { buildStudy } from '../../app/blinding/build.ts';
@@ -22,10 +24,14 @@ function allFiles(dir: string): string[] {
   return readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? allFiles(join(dir, e.name)) : [join(dir, e.name)]));
 }
 
+/** A file's bytes, inflated gzip content, and each member of a zip archive (inflated) with its name. */
 function contents(file: string): Buffer[] {
   const bytes = readFileSync(file);
   const out = [bytes];
   if (bytes[0] === 0x1f && bytes[1] === 0x8b) out.push(gunzipSync(bytes));
+  if (bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) {
+    for (const [name, member] of Object.entries(unzipSync(bytes))) out.push(Buffer.from(name), Buffer.from(member));
+  }
   return out;
 }
 
@@ -57,7 +63,7 @@ questions:
 readers: [R1, R2]
 `);
     const out = join(dir, 'study');
-    await buildStudy(loadTemplate(template), out);
+    await buildStudy(loadTemplate(template), out, undefined, undefined, { zip: true });
     const api = createApi(out);
     try {
       const kit = await api.openKit({ reader: 'R1' });
@@ -69,6 +75,7 @@ readers: [R1, R2]
     }
     const kitFiles = allFiles(join(out, 'kits'));
     expect(kitFiles.length).toBeGreaterThan(8);
+    expect(kitFiles.filter((f) => f.endsWith('.zip')).map((f) => relative(out, f)).sort()).toEqual([join('kits', 'R1.zip'), join('kits', 'R2.zip')]);
     const hits: string[] = [];
     for (const f of kitFiles) {
       const path = relative(out, f);
@@ -81,8 +88,10 @@ readers: [R1, R2]
     expect(hits).toEqual([]);
     // And nothing that names the method or the sources.
     for (const f of kitFiles) {
-      const text = readFileSync(f).toString('latin1');
-      for (const secret of ['m-alpha', 'm-beta', 'Alpha', 'Beta', FIXTURE, 'slice-1.dcm']) expect(text.includes(secret), `${secret} in ${f}`).toBe(false);
+      for (const body of contents(f)) {
+        const text = body.toString('latin1');
+        for (const secret of ['m-alpha', 'm-beta', 'Alpha', 'Beta', FIXTURE, 'slice-1.dcm']) expect(text.includes(secret), `${secret} in ${f}`).toBe(false);
+      }
       expect(statSync(f).isFile()).toBe(true);
     }
   });

@@ -40,10 +40,10 @@ class CoordinatorStore {
     }
   }
 
-  async startBuild(template: string, out: string): Promise<void> {
+  async startBuild(template: string, out: string, zip = false): Promise<void> {
     this.buildError = null;
     try {
-      this.job = await api.startBuild({ template, out });
+      this.job = await api.startBuild({ template, out, zip });
       this.poll();
     } catch (e) {
       this.buildError = (e as Error).message;

@@ -1,0 +1,74 @@
+/**
+ * Kits packed for transfer (`veil build --zip`): the archive unpacks into the kit folder, byte for
+ * byte, which the reading room then opens and verifies; its entries carry no date; and the build
+ * command prints where each archive is.
+ */
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { unzipSync } from 'fflate';
+import { describe, expect, it } from 'vitest';
+import { buildStudy } from '../../app/blinding/build.ts';
+import { listFiles, INTEGRITY_FILE } from '../../app/blinding/kit-integrity.ts';
+import { createApi } from '../../app/api.ts';
+import { runCli } from '../../app/cli.ts';
+import { loadTemplate } from '../../app/study/parse-template.ts';
+import { tempDir, writeTinyStudy } from './helpers.ts';
+
+/** The DOS date of every entry, from the central directory (PKWARE APPNOTE 4.3.12 and 4.3.16). */
+function entryDates(zip: Uint8Array): number[] {
+  const v = new DataView(zip.buffer, zip.byteOffset, zip.byteLength);
+  let end = zip.length - 22;
+  while (end >= 0 && v.getUint32(end, true) !== 0x06054b50) end--;
+  const count = v.getUint16(end + 10, true);
+  const dates: number[] = [];
+  for (let i = 0, at = v.getUint32(end + 16, true); i < count; i++) {
+    expect(v.getUint32(at, true)).toBe(0x02014b50);
+    dates.push(v.getUint16(at + 14, true));
+    at += 46 + v.getUint16(at + 28, true) + v.getUint16(at + 30, true) + v.getUint16(at + 32, true);
+  }
+  return dates;
+}
+
+describe('kits zipped for transfer', () => {
+  it('unpack into the kit folder byte for byte, and the unpacked kit opens and verifies', async () => {
+    const { dir, template } = writeTinyStudy();
+    const out = join(dir, 'study');
+    const summary = await buildStudy(loadTemplate(template), out, undefined, undefined, { zip: true });
+    for (const k of summary.kits) {
+      expect(k.zip).toBe(join(out, 'kits', `${k.reader}.zip`));
+      const zip = readFileSync(k.zip!);
+      const members = unzipSync(zip);
+      const expected = [INTEGRITY_FILE, ...listFiles(k.path)].map((f) => `${k.reader}/${f}`).sort();
+      expect(Object.keys(members).sort()).toEqual(expected);
+      for (const [name, bytes] of Object.entries(members)) {
+        expect(Buffer.from(bytes).equals(readFileSync(join(out, 'kits', name))), name).toBe(true);
+      }
+      // 1980-01-01 as a DOS date: ((1980 - 1980) << 9) | (1 << 5) | 1.
+      const dates = entryDates(zip);
+      expect(dates).toHaveLength(expected.length);
+      expect(new Set(dates)).toEqual(new Set([(1 << 5) | 1]));
+    }
+
+    // A reader unpacks R1.zip elsewhere and opens the kit there.
+    const elsewhere = tempDir('veil-unzipped-');
+    for (const [name, bytes] of Object.entries(unzipSync(readFileSync(summary.kits[0].zip!)))) {
+      mkdirSync(dirname(join(elsewhere, name)), { recursive: true });
+      writeFileSync(join(elsewhere, name), bytes);
+    }
+    const api = createApi(join(elsewhere, 'R1'));
+    try {
+      const kit = await api.openKit({ reader: 'R1' });
+      expect(kit.items).toHaveLength(summary.kits[0].items);
+    } finally {
+      api.close();
+    }
+  });
+
+  it('veil build --zip names each archive', async () => {
+    const { dir, template } = writeTinyStudy();
+    let text = '';
+    const code = await runCli(['build', template, '--out', join(dir, 'study'), '--zip'], { serve: async () => {} }, { out: (t) => (text += t), err: () => {}, isTTY: false });
+    expect(code).toBe(0);
+    expect(text).toContain(`for transfer: ${join(dir, 'study', 'kits', 'R2.zip')}`);
+  });
+});
