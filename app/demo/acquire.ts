@@ -6,7 +6,11 @@
  *   -> Cartesian undersampling of phase-encode lines at R = 4, variable density, full centre
  *   -> zero-filled: inverse DFT of the undersampled k-space (magnitude)
  *   -> iterative: compressed sensing by FISTA with Haar-wavelet sparsity (./cs-recon.ts)
- *   -> smoothed: the zero-filled image under a Gaussian filter (denoises, blurs edges).
+ *   -> smoothed: the compressed-sensing image under a Gaussian filter, blurrier than zero-filled yet
+ *      higher in PSNR. It is built on the CS image because smoothing the zero-filled image cannot
+ *      raise PSNR against the fully sampled reference (a linear filter cannot restore unacquired
+ *      k-space lines); a post-smoothed iterative reconstruction is the common way a method gains
+ *      PSNR while losing edges (common practice), so PSNR and readers disagree on sharpness.
  */
 import type { MT19937 } from '../blinding/mt19937.ts';
 import { fistaWaveletRecon } from './cs-recon.ts';
@@ -25,7 +29,10 @@ export interface AcquisitionSettings {
 }
 
 export const DEMO_ACQUISITION: AcquisitionSettings = {
-  acceleration: 4, centreLines: 20, noiseSigma: 0.008, lambda: 0.012, iterations: 25, smoothingSigma: 1.0,
+  acceleration: 4, centreLines: 20, noiseSigma: 0.008, lambda: 0.012, iterations: 25,
+  // 1.45 px: +1.3 to +2.3 dB PSNR over zero-filled in each demo case, yet the simulated readers' edge
+  // sharpness falls below zero-filled's (1.73 vs 2.20 on average); 1.5 leaves case-03 only 1.03 dB ahead.
+  smoothingSigma: 1.45,
 };
 
 export interface Reconstructions {
@@ -63,5 +70,5 @@ export function acquireAndReconstruct(truth: Float32Array, shape: PhantomShape, 
     out.zerofill.set(magnitude(fft.inverse(y)), z * n);
     out.iterative.set(magnitude(fistaWaveletRecon(y, mask, fft, { lambda: s.lambda, iterations: s.iterations, levels: 4 }, rng)), z * n);
   }
-  return { ...out, smoothed: gaussianBlur(out.zerofill, shape, s.smoothingSigma), mask };
+  return { ...out, smoothed: gaussianBlur(out.iterative, shape, s.smoothingSigma), mask };
 }

@@ -1,7 +1,8 @@
 /**
  * `veil demo --out DIR`: the invented demo study. Simulates, for six phantom cases, an MR
- * acquisition and three reconstructions at R = 4 (./acquire.ts) with the fully sampled image as
- * the reference, writes a template and the sources, builds the study
+ * acquisition and three reconstructions at R = 4 (./acquire.ts: zero-filled, compressed sensing, and
+ * compressed sensing then Gaussian-smoothed, which gains PSNR over zero-filled yet looks blurrier)
+ * with the fully sampled image as the reference, writes a template and the sources, builds the study
  * (DIR/workspace.sqlite, DIR/kits/) and fills answers from two simulated readers into the
  * workspace, labelled `simulated`, so that report and agreement have data at once. The kits stay
  * unanswered for a person to try the reading room.
@@ -18,14 +19,14 @@ import { streamFor } from '../blinding/streams.ts';
 import { addWorkspaceAnswers, openWorkspace, type WorkspaceAnswer } from '../store/workspace.ts';
 import { audit } from '../store/open.ts';
 import { makePhantom, type PhantomShape } from './phantom.ts';
-import { acquireAndReconstruct, DEMO_ACQUISITION } from './acquire.ts';
+import { acquireAndReconstruct, DEMO_ACQUISITION, type Reconstructions } from './acquire.ts';
 import { gaussianBlur } from './degrade.ts';
 import { latentScores, measureAppearance, simulatedScore, type SimulatedReader } from './simulated-readers.ts';
 
 export const DEMO_SEED = 90210;
 export const DEMO_TEMPLATE = 'demo.study.yaml';
-const SHAPE: PhantomShape = { rows: 256, columns: 256, slices: 4 };
-const CASES = ['case-01', 'case-02', 'case-03', 'case-04', 'case-05', 'case-06'];
+export const DEMO_SHAPE: PhantomShape = { rows: 256, columns: 256, slices: 4 };
+export const DEMO_CASES = ['case-01', 'case-02', 'case-03', 'case-04', 'case-05', 'case-06'];
 const READERS: SimulatedReader[] = [
   { code: 'R1', bias: 0.25, noise: 0.55 },
   { code: 'R2', bias: -0.3, noise: 0.7 },
@@ -44,7 +45,7 @@ methods:
     label: Compressed sensing (FISTA, Haar wavelets), R=4
     path: "{case}/iterative.nii"
   - id: m-smoothed
-    label: Zero-filled then Gaussian-smoothed, R=4
+    label: Compressed sensing then Gaussian-smoothed, R=4
     path: "{case}/smoothed"
 cases: auto
 questions:
@@ -72,7 +73,7 @@ display:
 const SPACING: [number, number, number] = [0.9, 0.9, 4];
 
 function volumeOf(pixels: Float32Array): Volume {
-  return { ...SHAPE, spacing: SPACING, orientation: IDENTITY_ORIENTATION, pixels, provenance: { path: '', format: 'npy', sha256: '' } };
+  return { ...DEMO_SHAPE, spacing: SPACING, orientation: IDENTITY_ORIENTATION, pixels, provenance: { path: '', format: 'npy', sha256: '' } };
 }
 
 function writeDicomFolder(dir: string, v: Volume, info: DicomSeriesInfo): void {
@@ -80,17 +81,22 @@ function writeDicomFolder(dir: string, v: Volume, info: DicomSeriesInfo): void {
   writeDicomSeries(v, info).forEach((bytes, i) => writeFileSync(join(dir, `slice-${String(i + 1).padStart(3, '0')}.dcm`), bytes));
 }
 
+/** One case's simulated acquisition and reconstructions, exactly as the demo writes them. */
+export function simulateDemoCase(caseId: string): Reconstructions {
+  // A slight blur gives the phantom the partial-volume edges of a real image.
+  const truth = gaussianBlur(makePhantom(streamFor(DEMO_SEED, 'demo-phantom', caseId), DEMO_SHAPE), DEMO_SHAPE, 0.6);
+  return acquireAndReconstruct(truth, DEMO_SHAPE, DEMO_ACQUISITION, streamFor(DEMO_SEED, 'demo-acquisition', caseId));
+}
+
 export interface DemoSummary { template: string; build: BuildSummary; simulatedAnswers: number }
 
 export async function writeDemo(outDir: string, onProgress?: (p: BuildProgress) => void): Promise<DemoSummary> {
   const latent = new Map<string, ReturnType<typeof latentScores>>();
-  const shape = [SHAPE.slices, SHAPE.rows, SHAPE.columns];
-  for (const caseId of CASES) {
+  const shape = [DEMO_SHAPE.slices, DEMO_SHAPE.rows, DEMO_SHAPE.columns];
+  for (const caseId of DEMO_CASES) {
     const dir = join(outDir, 'sources', caseId);
     mkdirSync(dir, { recursive: true });
-    // A slight blur gives the phantom the partial-volume edges of a real image.
-    const truth = gaussianBlur(makePhantom(streamFor(DEMO_SEED, 'demo-phantom', caseId), SHAPE), SHAPE, 0.6);
-    const recon = acquireAndReconstruct(truth, SHAPE, DEMO_ACQUISITION, streamFor(DEMO_SEED, 'demo-acquisition', caseId));
+    const recon = simulateDemoCase(caseId);
     // A mix of formats, as reconstruction teams hand them over: DICOM from the scanner, NumPy and
     // NIfTI from research code, and a re-exported DICOM series.
     const studyUid = newUid();
@@ -100,9 +106,9 @@ export async function writeDemo(outDir: string, onProgress?: (p: BuildProgress) 
     writeDicomFolder(join(dir, 'smoothed'), volumeOf(recon.smoothed), { studyUid, seriesNumber: 2, seriesDescription: 'smoothed' });
     const methods = { 'm-zerofill': recon.zerofill, 'm-iterative': recon.iterative, 'm-smoothed': recon.smoothed };
     for (const [methodId, img] of Object.entries(methods)) {
-      latent.set(`${caseId}/${methodId}`, latentScores(measureAppearance(img, recon.reference, SHAPE)));
+      latent.set(`${caseId}/${methodId}`, latentScores(measureAppearance(img, recon.reference, DEMO_SHAPE)));
     }
-    onProgress?.({ done: CASES.indexOf(caseId) + 1, total: CASES.length, what: `simulated acquisition of ${caseId}` });
+    onProgress?.({ done: DEMO_CASES.indexOf(caseId) + 1, total: DEMO_CASES.length, what: `simulated acquisition of ${caseId}` });
   }
   const templatePath = join(outDir, DEMO_TEMPLATE);
   writeFileSync(templatePath, TEMPLATE);
