@@ -192,7 +192,7 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .description('image metrics (PSNR, SSIM, NRMSE, HFEN) of a test volume against a reference, with the conventions used')
     .requiredOption('--reference <a>', 'reference volume (any supported source)')
     .requiredOption('--test <b>', 'test volume, same shape as the reference')
-    .option('--mask <m>', "foreground mask: a volume file (nonzero = foreground) or 'auto' (Otsu + largest component of the reference)")
+    .option('--mask <m>', "foreground mask: a volume file (nonzero = foreground) or 'auto' (Otsu + largest component of the reference, holes filled)")
     .addOption(new Option('--data-range <x>', 'data range L for PSNR and SSIM (default: max - min of the reference)').argParser((v) => {
       const n = Number(v);
       if (!(Number.isFinite(n) && n > 0)) throw new InvalidArgumentError('the data range must be a positive number');

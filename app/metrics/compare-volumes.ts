@@ -26,7 +26,7 @@ import { SSIM_K1, SSIM_K2, SSIM_SIGMA, SSIM_TRUNCATE, SSIM_WINDOW, combineSsim }
 export interface MetricOptions {
   /** L for PSNR and SSIM; default max(reference) − min(reference). */
   dataRange?: number;
-  /** 'auto' (Otsu + largest component on the reference), a mask volume, or none. */
+  /** 'auto' (Otsu + largest component, holes filled, on the reference), a mask volume, or none. */
   mask?: 'auto' | Volume | null;
 }
 
@@ -65,6 +65,8 @@ export interface MaskDescription {
   path?: string;
   threshold?: number;
   components?: number;
+  /** Voxels added by filling holes (automatic mask). */
+  filled?: number;
   voxels: number;
   /** Share of all voxels. */
   fraction: number;
@@ -176,7 +178,7 @@ function metricsFrom(prepared: PreparedReference, test: Volume, parts: SlicePart
     result.mask = {
       source: pm.source,
       ...(pm.path !== undefined ? { path: pm.path } : {}),
-      ...(pm.threshold !== undefined ? { threshold: pm.threshold, components: pm.components } : {}),
+      ...(pm.threshold !== undefined ? { threshold: pm.threshold, components: pm.components, filled: pm.filled } : {}),
       voxels: pm.voxels,
       fraction: pm.voxels / reference.pixels.length,
     };
@@ -233,7 +235,7 @@ export function metricConventions(r: Pick<VolumeMetrics, 'data_range' | 'data_ra
     lines.push(
       m.source === 'auto'
         ? `Foreground mask, automatic: Otsu's threshold on the reference (256 bins) = ${num(m.threshold!)}, voxels above it, ` +
-            `largest face-connected component of ${m.components}: ${share}.`
+            `largest face-connected component of ${m.components}, its holes filled slice by slice (${m.filled} voxels): ${share}.`
         : `Foreground mask from ${m.path}: nonzero voxels, ${share}.`,
       'Masked metrics: the same L; PSNR, NRMSE and the HFEN norms over mask voxels (the LoG still filters whole slices); ' +
         "SSIM averaged over the mask pixels of each slice's interior, then over the slices that have any.",

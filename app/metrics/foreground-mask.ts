@@ -3,10 +3,13 @@
  * source format; nonzero voxels are foreground) or automatic from the reference: Otsu's threshold
  * (./otsu.ts) over the whole reference volume, the voxels above it, then their largest
  * face-connected component (./largest-component.ts), which drops isolated noise voxels in the
- * background. Automatic masking of this kind is common practice for MR metrics (e.g. the brain or
- * body outline); its parameters are printed with every report.
+ * background, then that component's holes filled slice by slice (./fill-holes.ts), so that dark
+ * tissue enclosed by a bright outline counts as foreground. Automatic masking of this kind is
+ * common practice for MR metrics (e.g. the brain or body outline); its parameters are printed with
+ * every report.
  */
 import type { Volume } from '../images/volume.ts';
+import { fillHolesBySlice } from './fill-holes.ts';
 import { largestComponent } from './largest-component.ts';
 import { MetricsError } from './metrics-error.ts';
 import { otsuThreshold } from './otsu.ts';
@@ -22,6 +25,8 @@ export interface ForegroundMask {
   threshold?: number;
   /** Connected components above the threshold, of which the largest was kept (source 'auto'). */
   components?: number;
+  /** Voxels added by filling the largest component's holes (source 'auto'). */
+  filled?: number;
 }
 
 export function shapeText(v: Pick<Volume, 'slices' | 'rows' | 'columns'>): string {
@@ -42,13 +47,15 @@ export function autoForegroundMask(reference: Volume): ForegroundMask {
   const threshold = otsuThreshold(reference.pixels);
   const above = new Uint8Array(reference.pixels.length);
   for (let i = 0; i < above.length; i++) above[i] = reference.pixels[i] > threshold ? 1 : 0;
-  const { mask, voxels, components } = largestComponent(above, reference);
+  const { mask, voxels: kept, components } = largestComponent(above, reference);
+  const filled = kept === 0 ? 0 : fillHolesBySlice(mask, reference);
+  const voxels = kept + filled;
   if (voxels === 0) {
     throw new MetricsError(
       `${reference.provenance.path}: the automatic foreground mask is empty (no voxel above Otsu's threshold ${threshold}); give a mask file instead`,
     );
   }
-  return { mask, voxels, source: 'auto', threshold, components };
+  return { mask, voxels, source: 'auto', threshold, components, filled };
 }
 
 export function maskFromVolume(maskVolume: Volume, reference: Volume): ForegroundMask {

@@ -22,7 +22,7 @@ import { largestComponent } from '../../app/metrics/largest-component.ts';
 const DIR = fileURLToPath(new URL('../reference/metrics/', import.meta.url));
 
 interface Values { data_range: number; psnr: number; ssim: number; ssim_per_slice: number[]; nrmse: number; hfen: number }
-interface Masked { file: string; psnr: number; ssim: number | null; ssim_slices: number; nrmse: number; hfen: number; voxels: number; threshold?: number; components?: number }
+interface Masked { file: string; psnr: number; ssim: number | null; ssim_slices: number; nrmse: number; hfen: number; voxels: number; threshold?: number; components?: number; filled?: number }
 interface Case {
   name: string;
   dtype: string;
@@ -73,7 +73,7 @@ describe('image metrics against scikit-image and SciPy', () => {
       const a = c.automask!;
       expectNear(otsuThreshold(ref.pixels), a.threshold!, 1e-12, 'Otsu threshold');
       const r = compareVolumes(ref, test, { mask: 'auto' });
-      expect(r.mask).toMatchObject({ source: 'auto', voxels: a.voxels, components: a.components });
+      expect(r.mask).toMatchObject({ source: 'auto', voxels: a.voxels, components: a.components, filled: a.filled });
       expectNear(r.mask!.threshold!, a.threshold!, 1e-12, 'threshold in the report');
       const prepared = prepareReference(ref, { mask: 'auto' });
       expect(Array.from(prepared.mask!.mask)).toEqual(Array.from(expectedMask.pixels, (v) => (v ? 1 : 0)));
