@@ -4,7 +4,6 @@
  * a failed build leaves the output folder as it was.
  */
 import { existsSync, mkdirSync, readFileSync, readdirSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { writeFile } from 'node:fs/promises';
 import { join, resolve } from 'node:path';
 import type { StudyTemplate } from '../study/template.ts';
 import { resolveCases } from '../study/cases.ts';
@@ -26,6 +25,7 @@ import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16 } from '.
 import { makeCaseImages, type CaseDone, type CaseImage, type CaseJob } from './case-images.ts';
 import { CaseWorkers } from './build-workers.ts';
 import { zipKit } from './kit-zip.ts';
+import { WriteQueue } from './write-queue.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
 export const KITS_DIR = 'kits';
@@ -69,6 +69,8 @@ export interface BuildOptions {
 
 /** Sources of at least this many bytes in all are built on worker threads by default. */
 export const PARALLEL_FROM_BYTES = 64 * 2 ** 20;
+/** Bytes of kit images being written at once (./write-queue.ts). */
+const WRITE_BUDGET = 64 * 2 ** 20;
 /** Pixels that the cases running at once may hold together; more cases run only while under it. */
 const PARALLEL_MEMORY_BUDGET = 512 * 2 ** 20;
 
@@ -158,8 +160,8 @@ export async function buildStudy(
   // The staging workspace is thrown away on any failure, so it need not reach the disk row by row;
   // it is made durable once, before it is moved into place.
   ws.db.pragma('synchronous = OFF');
-  // Image writes overlap with reading and converting the next volume; a few volumes' worth at most are in flight.
-  let pendingWrites: Promise<void>[] = [];
+  // Image writes overlap with making the next images; WRITE_BUDGET bounds the images in flight.
+  const writes = new WriteQueue(WRITE_BUDGET);
   try {
     // Which items show a (case, method) volume, and in which view (0: single or left, 1: right).
     const itemsByPair = new Map<string, { it: ScheduledItem; view: number }[]>();
@@ -174,12 +176,6 @@ export async function buildStudy(
     for (const r of template.readers) mkdirSync(join(staging, KITS_DIR, r, 'images'), { recursive: true });
     const seriesIds = new Map<string, number>();
     const imageHashes = new Map<string, Map<string, KitFileEntry>>(template.readers.map((r) => [r, new Map()]));
-    const drainWrites = async (max: number) => {
-      if (pendingWrites.length <= max) return;
-      const waiting = pendingWrites;
-      pendingWrites = [];
-      await Promise.all(waiting);
-    };
     const total = resolution.cases.length * (methodIds.length + (template.reference ? 1 : 0));
     let done = 0;
 
@@ -223,16 +219,17 @@ export async function buildStudy(
         // Kept for the workspace rows without the image bytes.
         rows.images.push({ ...img, image: { ...image, bytes: new Uint8Array(0) } });
         features.push({ case: img.caseId, method: methodId, stats: img.stats });
+        const paths: string[] = [];
         for (const { it, view } of itemsByPair.get(`${img.caseId}\u0000${methodId}`) ?? []) {
           const file = it.rightMethodId ? `images/${it.itemId}-${view + 1}.npy` : `images/${it.itemId}.npy`;
-          pendingWrites.push(writeFile(join(staging, KITS_DIR, it.reader, file), image.bytes));
+          paths.push(join(staging, KITS_DIR, it.reader, file));
           imageHashes.get(it.reader)!.set(file, { path: file, bytes: image.bytes.length, sha256: image.sha256 });
           const entry = kitItems.get(it.reader)!.get(it.itemId) ?? { id: it.itemId, session: it.session, views: [] };
           entry.views[view] = { image: file, columns: image.columns, rows: image.rows, slices: image.slices, spacing: image.spacing, window: image.window };
           kitItems.get(it.reader)!.set(it.itemId, entry);
         }
         onProgress?.({ done: ++done, total, what: `case ${img.caseId}: ${methodId}` });
-        await drainWrites(4 * template.readers.length);
+        await writes.add(image.bytes, paths);
       } else {
         rows.images.push(img);
         onProgress?.({ done: ++done, total, what: `case ${img.caseId}: reference` });
@@ -272,10 +269,11 @@ export async function buildStudy(
       if (burned.apply) blackOut(shown.data, v.rows, v.columns, v.slices, template.burned_in!);
       const bytes = writeNpy(shown.data, v.slices === 1 ? [v.rows, v.columns] : [v.slices, v.rows, v.columns]);
       const sha256 = sha256Hex(bytes);
+      const ids = template.readers.map((_, r) => calibrationIds[r * template.calibration.length + k]);
+      await writes.add(bytes, template.readers.map((reader, r) => join(staging, KITS_DIR, reader, `images/${ids[r]}.npy`)));
       template.readers.forEach((reader, r) => {
-        const id = calibrationIds[r * template.calibration.length + k];
+        const id = ids[r];
         const image = `images/${id}.npy`;
-        pendingWrites.push(writeFile(join(staging, KITS_DIR, reader, image), bytes));
         imageHashes.get(reader)!.set(image, { path: image, bytes: bytes.length, sha256 });
         calibrationItems.get(reader)!.push({
           id, session: 1, calibration: { scores: cal.scores, note: cal.note },
@@ -286,7 +284,7 @@ export async function buildStudy(
       });
     }
 
-    await drainWrites(0);
+    await writes.flush();
     const blinding = studyBlinding(features, template.seed);
     ws.db.prepare('UPDATE study SET blinding = ? WHERE id = 1').run(blinding ? JSON.stringify(blinding) : null);
     const createdAt = new Date().toISOString();
@@ -343,7 +341,7 @@ export async function buildStudy(
     };
   } catch (e) {
     ws.close();
-    await Promise.allSettled(pendingWrites);
+    await writes.settle();
     rmSync(staging, { recursive: true, force: true });
     throw e;
   }

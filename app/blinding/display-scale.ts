@@ -14,6 +14,8 @@
  * order statistics (NumPy's default 'linear' method), from a regular subsample of at most 200,000
  * values for large images. The least-squares line is the ordinary one (numpy.polyfit, degree 1).
  */
+import { sortFloat32 } from './float32-sort.ts';
+
 export const DISPLAY_MAX = 4000;
 
 /**
@@ -39,8 +41,7 @@ function sortSample(values: Float32Array, maxSamples: number): Float32Array {
   const buffer = new Float32Array(Math.ceil(values.length / step));
   let n = 0;
   for (let i = 0; i < values.length; i += step) if (Number.isFinite(values[i])) buffer[n++] = values[i];
-  // A typed array sorts numerically in native code, far faster than an array with a comparator.
-  return buffer.subarray(0, n).sort();
+  return sortFloat32(buffer.subarray(0, n));
 }
 
 /** The p-th percentile (linear interpolation between closest ranks) of values already sorted. */

@@ -10,7 +10,7 @@
  * with it (test/reference/display/). Slices are not resampled: a different slice count is a
  * missing or extra slice, reported, never interpolated away.
  */
-import type { Volume } from './volume.ts';
+import { finiteRange, type Volume } from './volume.ts';
 
 interface Taps {
   lo: Int32Array;
@@ -63,7 +63,7 @@ export function resampleInPlane(v: Volume, rows: number, columns: number): Volum
     }
   }
   const spacing: Volume['spacing'] = [(v.spacing[0] * v.columns) / columns, (v.spacing[1] * v.rows) / rows, v.spacing[2]];
-  const resampled: Volume = { ...v, rows, columns, spacing, pixels: out };
+  const resampled: Volume = { ...v, rows, columns, spacing, pixels: out, range: finiteRange(out) };
   if (v.origin) {
     // The first pixel's centre moves with the pixel size: half a new pixel in from the shared edge.
     const [dc, dr] = [(spacing[0] - v.spacing[0]) / 2, (spacing[1] - v.spacing[1]) / 2];

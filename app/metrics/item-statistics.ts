@@ -76,7 +76,7 @@ export function itemStatistics(volume: Volume, options: ItemStatisticsOptions = 
   const scale = high > low ? high - low : 1;
   const q = (p: number): number => (quantileSorted(sorted, p) - low) / scale;
 
-  const threshold = otsuThreshold(px);
+  const threshold = otsuThreshold(px, volume.range);
   let count = 0;
   let sum = 0;
   for (let i = 0; i < px.length; i++) {
@@ -90,14 +90,19 @@ export function itemStatistics(volume: Volume, options: ItemStatisticsOptions = 
   for (let i = 0; i < px.length; i++) if (px[i] <= threshold) squares += (px[i] - mean) ** 2;
   const noise = count > 1 ? Math.sqrt(squares / count) / scale : 0;
 
+  // Squared differences to the right and downward neighbours within each slice.
   let energy = 0;
   for (let s = 0; s < S; s++) {
     for (let r = 0; r < R; r++) {
       const o = (s * R + r) * C;
+      for (let c = 0; c + 1 < C; c++) {
+        const d = px[o + c + 1] - px[o + c];
+        energy += d * d;
+      }
+      if (r + 1 === R) continue;
       for (let c = 0; c < C; c++) {
-        const v = px[o + c];
-        if (c + 1 < C) energy += (px[o + c + 1] - v) ** 2;
-        if (r + 1 < R) energy += (px[o + C + c] - v) ** 2;
+        const d = px[o + C + c] - px[o + c];
+        energy += d * d;
       }
     }
   }

@@ -19,9 +19,12 @@ import { finiteRange } from '../images/volume.ts';
 
 const BINS = 256;
 
-/** Otsu's threshold of the finite values (metrics reject volumes with others before they get here). */
-export function otsuThreshold(values: Float32Array): number {
-  const [min, max] = finiteRange(values);
+/**
+ * Otsu's threshold of the finite values (metrics reject volumes with others before they get here).
+ * `range`: their smallest and largest finite value when already known (a Volume's `range`).
+ */
+export function otsuThreshold(values: Float32Array, range?: [number, number]): number {
+  const [min, max] = range ?? finiteRange(values);
   if (!(max > min)) return values[0];
 
   const step = (max - min) / BINS;

@@ -48,6 +48,15 @@ describe('in-plane resampling', () => {
     expect(out.origin![2]).toBe(30);
   });
 
+  it('gives the resampled pixels their own range, not the source\'s', () => {
+    // One bright pixel: halving the matrix averages it with its neighbours, so the largest value falls.
+    const px = new Float32Array(1 * 4 * 4);
+    px[5] = 100;
+    const out = resampleInPlane(volume(px, 1, 4, 4, { range: [0, 100] }), 2, 2);
+    expect(out.range).toEqual([Math.min(...out.pixels), Math.max(...out.pixels)]);
+    expect(out.range![1]).toBeLessThan(100);
+  });
+
   it('returns the volume itself when it is already on the grid', () => {
     expect(resampleInPlane(input, r, c)).toBe(input);
   });
