@@ -90,80 +90,104 @@ const compare = (a: string, b: string): number => (a < b ? -1 : a > b ? 1 : 0);
  * mean first, which keeps the one-pass variances accurate.
  */
 export function leaveOneCaseOutAccuracy(x: number[][], label: ArrayLike<number>, caseOf: ArrayLike<number>, cases: number, methods: number): number {
+  return leaveOneCaseOut(x, caseOf, cases)(label, methods);
+}
+
+/**
+ * leaveOneCaseOutAccuracy with everything that does not depend on the labels (the centring, the
+ * per-case totals and each fold's inverse variances) worked out once, for the many relabellings
+ * of a permutation test; each call then costs only the method sums and the classification.
+ */
+export function leaveOneCaseOut(x: number[][], caseOf: ArrayLike<number>, cases: number): (label: ArrayLike<number>, methods: number) => number {
   const n = x.length;
-  if (n === 0) return Number.NaN;
+  if (n === 0) return () => Number.NaN;
   const f = x[0].length;
   const centre = new Float64Array(f);
   for (const row of x) for (let k = 0; k < f; k++) centre[k] += row[k] / n;
   const v = x.map((row) => Float64Array.from(row, (value, k) => value - centre[k]));
-  // Totals, and each case's part: Σv, Σv² per feature; Σv and count per method.
+  // Totals, and each case's part: Σv, Σv² per feature.
   const sum = new Float64Array(f);
   const squares = new Float64Array(f);
-  const methodSum = new Float64Array(methods * f);
-  const methodCount = new Float64Array(methods);
   const caseSum = new Float64Array(cases * f);
   const caseSquares = new Float64Array(cases * f);
-  const caseMethodSum = new Float64Array(cases * methods * f);
-  const caseMethodCount = new Float64Array(cases * methods);
   const caseCount = new Float64Array(cases);
   for (let i = 0; i < n; i++) {
     const c = caseOf[i];
-    const m = label[i];
     caseCount[c]++;
-    methodCount[m]++;
-    caseMethodCount[c * methods + m]++;
     for (let k = 0; k < f; k++) {
       const value = v[i][k];
       sum[k] += value;
       squares[k] += value * value;
-      methodSum[m * f + k] += value;
       caseSum[c * f + k] += value;
       caseSquares[c * f + k] += value * value;
-      caseMethodSum[(c * methods + m) * f + k] += value;
     }
   }
-  const inverseVariance = new Float64Array(f);
-  const centroid = new Float64Array(methods * f);
-  const members = new Float64Array(methods);
-  let credit = 0;
+  // Each fold's inverse training variances.
+  const inverseVariance = new Float64Array(cases * f);
   for (let held = 0; held < cases; held++) {
     const train = n - caseCount[held];
-    if (train === 0 || caseCount[held] === 0) continue;
+    if (train === 0) continue;
     for (let k = 0; k < f; k++) {
       const mean = (sum[k] - caseSum[held * f + k]) / train;
       const meanSquare = (squares[k] - caseSquares[held * f + k]) / train;
       const variance = meanSquare - mean * mean;
       // A feature constant over the training cases is left out (rounding may leave a trace of variance).
-      inverseVariance[k] = variance > 1e-12 * meanSquare ? 1 / variance : 0;
-    }
-    for (let m = 0; m < methods; m++) {
-      members[m] = methodCount[m] - caseMethodCount[held * methods + m];
-      for (let k = 0; k < f; k++) {
-        centroid[m * f + k] = members[m] > 0 ? (methodSum[m * f + k] - caseMethodSum[(held * methods + m) * f + k]) / members[m] : 0;
-      }
-    }
-    for (let i = 0; i < n; i++) {
-      if (caseOf[i] !== held) continue;
-      let best = Infinity;
-      let tied = 0;
-      let hit = false;
-      for (let m = 0; m < methods; m++) {
-        if (members[m] === 0) continue;
-        let d = 0;
-        for (let k = 0; k < f; k++) d += (v[i][k] - centroid[m * f + k]) ** 2 * inverseVariance[k];
-        if (d < best) {
-          best = d;
-          tied = 1;
-          hit = m === label[i];
-        } else if (d === best) {
-          tied++;
-          if (m === label[i]) hit = true;
-        }
-      }
-      if (hit) credit += 1 / tied;
+      inverseVariance[held * f + k] = variance > 1e-12 * meanSquare ? 1 / variance : 0;
     }
   }
-  return credit / n;
+
+  return (label, methods) => {
+    // Σv and count per method, in total and within each case.
+    const methodSum = new Float64Array(methods * f);
+    const methodCount = new Float64Array(methods);
+    const caseMethodSum = new Float64Array(cases * methods * f);
+    const caseMethodCount = new Float64Array(cases * methods);
+    for (let i = 0; i < n; i++) {
+      const c = caseOf[i];
+      const m = label[i];
+      methodCount[m]++;
+      caseMethodCount[c * methods + m]++;
+      for (let k = 0; k < f; k++) {
+        const value = v[i][k];
+        methodSum[m * f + k] += value;
+        caseMethodSum[(c * methods + m) * f + k] += value;
+      }
+    }
+    const centroid = new Float64Array(methods * f);
+    const members = new Float64Array(methods);
+    let credit = 0;
+    for (let held = 0; held < cases; held++) {
+      const train = n - caseCount[held];
+      if (train === 0 || caseCount[held] === 0) continue;
+      for (let m = 0; m < methods; m++) {
+        members[m] = methodCount[m] - caseMethodCount[held * methods + m];
+        for (let k = 0; k < f; k++) {
+          centroid[m * f + k] = members[m] > 0 ? (methodSum[m * f + k] - caseMethodSum[(held * methods + m) * f + k]) / members[m] : 0;
+        }
+      }
+      for (let i = 0; i < n; i++) {
+        if (caseOf[i] !== held) continue;
+        let best = Infinity;
+        let tied = 0;
+        let hit = false;
+        for (let m = 0; m < methods; m++) {
+          if (members[m] === 0) continue;
+          let d = 0;
+          for (let k = 0; k < f; k++) d += (v[i][k] - centroid[m * f + k]) ** 2 * inverseVariance[held * f + k];
+          if (d < best) {
+            best = d;
+            tied = 1;
+            hit = m === label[i];
+          } else if (d === best) {
+            tied++;
+            if (m === label[i]) hit = true;
+          }
+        }
+        if (hit) credit += 1 / tied;
+      }
+    }
+    return credit / n;
+  };
 }
 
 /**
@@ -197,10 +221,11 @@ export function blindingStrength(items: readonly ItemFeatures[], options: Blindi
   const label = Int32Array.from(sorted, (i) => methods.indexOf(i.method));
   const all = sorted.map((i) => statistics.map((s) => i.stats[s] as number));
   const single = statistics.map((_, k) => all.map((row) => [row[k]]));
-  const accuracyOf = (x: number[][], labels: ArrayLike<number>): number => leaveOneCaseOutAccuracy(x, labels, caseOf, caseIds.length, methods.length);
+  const allOf = leaveOneCaseOut(all, caseOf, caseIds.length);
+  const singleOf = single.map((x) => leaveOneCaseOut(x, caseOf, caseIds.length));
 
-  const observed = accuracyOf(all, label);
-  const observedSingle = single.map((x) => accuracyOf(x, label));
+  const observed = allOf(label, methods.length);
+  const observedSingle = singleOf.map((of) => of(label, methods.length));
   let atLeast = 0;
   const atLeastSingle = new Array<number>(statistics.length).fill(0);
   const rng = streamFor(options.seed, BLINDING_STREAM);
@@ -215,9 +240,9 @@ export function blindingStrength(items: readonly ItemFeatures[], options: Blindi
       permuted.set(labels, start);
       start = end;
     }
-    if (accuracyOf(all, permuted) >= observed - tolerance) atLeast++;
-    single.forEach((x, k) => {
-      if (accuracyOf(x, permuted) >= observedSingle[k] - tolerance) atLeastSingle[k]++;
+    if (allOf(permuted, methods.length) >= observed - tolerance) atLeast++;
+    singleOf.forEach((of, k) => {
+      if (of(permuted, methods.length) >= observedSingle[k] - tolerance) atLeastSingle[k]++;
     });
   }
   const pOf = (count: number): number => (1 + count) / (1 + permutations);
