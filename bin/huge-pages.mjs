@@ -17,6 +17,15 @@ export function withHugePages(env = process.env) {
   return { ...env, GLIBC_TUNABLES: current ? `${current}:${TUNABLE}` : TUNABLE };
 }
 
+/** The environment without the huge-page tunable (for measuring other programs as they usually run). */
+export function withoutHugePages(env = process.env) {
+  const rest = (env.GLIBC_TUNABLES ?? '').split(':').filter((t) => t && !t.startsWith('glibc.malloc.hugetlb'));
+  const out = { ...env };
+  if (rest.length) out.GLIBC_TUNABLES = rest.join(':');
+  else delete out.GLIBC_TUNABLES;
+  return out;
+}
+
 function wanted() {
   return process.platform === 'linux' && !process.env.VEIL_NO_RELAUNCH && withHugePages() !== process.env;
 }

@@ -16,6 +16,8 @@ import { streamFor } from '../../app/blinding/streams.ts';
 import { parseTidyCsv, writeTidyCsv, type TidyRow } from '../../app/report/tidy-csv.ts';
 import { agreementReport } from '../../app/stats/agreement.ts';
 import { fmt } from './stats.ts';
+// @ts-expect-error a plain ES module of the launchers, without types
+import { withoutHugePages } from '../../bin/huge-pages.mjs';
 
 const READERS = 20;
 const CASES = 500;
@@ -96,7 +98,7 @@ export async function bench(): Promise<string[]> {
     const rScript = join(dir, 'psych.R');
     writeFileSync(rScript, R_SCRIPT);
     const tR = performance.now();
-    const r = spawnSync('Rscript', [rScript, csv], { encoding: 'utf8' });
+    const r = spawnSync('Rscript', [rScript, csv], { encoding: 'utf8', env: withoutHugePages() });
     const rWallMs = performance.now() - tR;
     const lines = [
       `agreement: ${rows.length.toLocaleString('en')} ratings (${READERS} readers x ${CASES} cases x ${METHODS.length} methods x ${QUESTIONS.length} questions), ` +

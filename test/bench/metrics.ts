@@ -4,6 +4,8 @@
  * use_sample_covariance=False, data_range given) on the same arrays, in the same run.
  * Goal: Veil at least twice as fast.
  *
+ * Python runs as it usually does (without the glibc huge-page tunable that `veil metrics` sets for
+ * itself, bin/huge-pages.mjs); for transparency it is also timed with that tunable.
  * Two comparisons, each the best of five alternating runs:
  * - whole process: `veil metrics --json` (Node start, tsx, both .npy files read, all four metrics)
  *   against `/usr/bin/python3` importing scikit-image, loading both arrays and computing SSIM;
@@ -21,6 +23,8 @@ import { loadVolume } from '../../app/images/load.ts';
 import { compareToReferenceInParallel, prepareReferenceInParallel } from '../../app/metrics/compare-volumes.ts';
 import { MetricWorkers, defaultWorkerCount } from '../../app/metrics/metric-workers.ts';
 import { fmt } from './stats.ts';
+// @ts-expect-error a plain ES module of the launchers, without types
+import { withHugePages, withoutHugePages } from '../../bin/huge-pages.mjs';
 
 const REPO = join(import.meta.dirname, '..', '..');
 const PYTHON = '/usr/bin/python3';
@@ -55,9 +59,9 @@ t2 = time.perf_counter()
 print(json.dumps({"ssim": ssim, "imports_ms": (t1 - t0) * 1000, "work_ms": (t2 - t1) * 1000}))
 `;
 
-function timed(cmd: string, args: string[]): { ms: number; stdout: string } {
+function timed(cmd: string, args: string[], env: NodeJS.ProcessEnv = process.env): { ms: number; stdout: string } {
   const t0 = performance.now();
-  const r = spawnSync(cmd, args, { encoding: 'utf8', maxBuffer: 1 << 24 });
+  const r = spawnSync(cmd, args, { encoding: 'utf8', maxBuffer: 1 << 24, env });
   const ms = performance.now() - t0;
   if (r.status !== 0) throw new Error(`${cmd} ${args.join(' ')} failed: ${r.stderr || r.error}`);
   return { ms, stdout: r.stdout };
@@ -70,7 +74,7 @@ export async function bench(): Promise<string[]> {
     const test = join(dir, 'test.npy');
     const script = join(dir, 'ssim_alone.py');
     writeFileSync(script, SSIM_ALONE);
-    const made = spawnSync(PYTHON, ['-c', MAKE_ARRAYS, ref, test], { encoding: 'utf8' });
+    const made = spawnSync(PYTHON, ['-c', MAKE_ARRAYS, ref, test], { encoding: 'utf8', env: withoutHugePages() });
     if (made.status !== 0) return [`skipped: ${PYTHON} with NumPy and SciPy is needed to make the arrays (${made.stderr || made.error})`];
 
     const veilWhole: number[] = [];
@@ -78,6 +82,9 @@ export async function bench(): Promise<string[]> {
     const parts: [number, number, number][] = [];
     const pyWhole: number[] = [];
     const pyInner: number[] = [];
+    // Python as it usually runs, and with the glibc huge-page tunable that `veil metrics` gives itself.
+    const pyHugeWhole: number[] = [];
+    const pyHugeInner: number[] = [];
     let veilSsim = NaN;
     let pySsim = NaN;
     for (let run = 0; run < RUNS; run++) {
@@ -98,8 +105,11 @@ export async function bench(): Promise<string[]> {
       parts.push([t1 - t0, t2 - t1, t3 - t2]);
       if (Math.abs(r.ssim - veilSsim) > 1e-12) throw new Error('in-process and command-line SSIM differ');
 
-      const p = timed(PYTHON, [script, ref, test]);
+      const p = timed(PYTHON, [script, ref, test], withoutHugePages());
       pyWhole.push(p.ms);
+      const ph = timed(PYTHON, [script, ref, test], withHugePages(withoutHugePages()));
+      pyHugeWhole.push(ph.ms);
+      pyHugeInner.push((JSON.parse(ph.stdout) as { work_ms: number }).work_ms);
       const pj = JSON.parse(p.stdout) as { ssim: number; work_ms: number };
       pyInner.push(pj.work_ms);
       pySsim = pj.ssim;
@@ -111,6 +121,8 @@ export async function bench(): Promise<string[]> {
       `metrics, 64 x 320 x 320 float32 pair (goal: Veil at least 2x as fast as scikit-image SSIM alone); Veil on ${defaultWorkerCount() + 1} threads`,
       `  whole process: veil metrics (PSNR, SSIM, NRMSE, HFEN) ${fmt(best(veilWhole))}  vs  python3 + scikit-image SSIM alone ${fmt(best(pyWhole))}  -> Veil ${ratio(veilWhole, pyWhole)} as fast`,
       `  in process:    read + four metrics ${fmt(best(veilInner))}  vs  np.load + SSIM alone ${fmt(best(pyInner))}  -> Veil ${ratio(veilInner, pyInner)} as fast`,
+      `  python3 given the same glibc huge-page tunable as Veil: whole ${fmt(best(pyHugeWhole))} (Veil ${ratio(veilWhole, pyHugeWhole)} as fast), ` +
+        `in process ${fmt(best(pyHugeInner))} (Veil ${ratio(veilInner, pyHugeInner)}); page faults weigh heavily on this machine`,
       `  Veil in process, fastest run: read both files ${fmt(read)}; reference (data range, energy, LoG) ${fmt(prepare)}; ` +
         `test (PSNR, SSIM, NRMSE, LoG of the difference) ${fmt(compare)}`,
       `  SSIM agrees with scikit-image to ${Math.abs(veilSsim - pySsim).toExponential(1)} (Veil ${veilSsim.toFixed(8)}, scikit-image ${pySsim.toFixed(8)})`,

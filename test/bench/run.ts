@@ -3,10 +3,18 @@
  * `bench(): Promise<string[]>`), one after the other so they do not compete for the two cores,
  * and prints their lines. Reference tools (cp, pydicom, scikit-image, R) are measured in the same
  * run by the modules themselves; a module whose reference tool is missing says so and goes on.
+ * Like the `veil` commands that read volumes, the run starts itself again with glibc's huge-page
+ * tunable (bin/huge-pages.mjs), so that what is measured in process is what those commands do.
  */
 import { readdirSync } from 'node:fs';
+// @ts-expect-error a plain ES module of the launchers, without types
+import { followParent, relaunchWithHugePages } from '../../bin/huge-pages.mjs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
+
+const relaunched = await relaunchWithHugePages();
+if (relaunched !== null) process.exit(relaunched);
+followParent();
 
 const HERE = import.meta.dirname;
 const wanted = process.argv.slice(2);
