@@ -109,14 +109,20 @@ async function runCases(
     for (const [i, job] of jobs.entries()) onDone(i, await makeCaseImages(job, (img) => onImage(i, img), signal));
     return;
   }
+  signal?.throwIfAborted();
   let peak = 0;
   const running = new Set<Promise<void>>();
   let failure: unknown = null;
+  // A cancel does not wait for the cases running: closing the workers stops them.
+  const cancelled = new Promise<void>((wake) => signal?.addEventListener('abort', () => {
+    failure ??= signal.reason;
+    wake();
+  }, { once: true }));
+  const next = () => Promise.race([...running, cancelled]);
   for (const [i, job] of jobs.entries()) {
     const limit = peak === 0 ? 1 : Math.max(1, Math.min(workers.size, Math.floor(PARALLEL_MEMORY_BUDGET / peak)));
-    while (running.size >= limit && failure === null) await Promise.race(running);
+    while (running.size >= limit && failure === null) await next();
     if (failure !== null) break;
-    signal?.throwIfAborted();
     const p: Promise<void> = workers.run(job, (img) => onImage(i, img)).then(
       (done) => {
         peak = Math.max(peak, done.peakBytes);
@@ -128,10 +134,9 @@ async function runCases(
     ).finally(() => running.delete(p));
     running.add(p);
   }
-  // On a failure the cases still running are not waited for: closing the workers stops them.
-  while (running.size > 0 && failure === null) await Promise.race(running);
+  // On a failure the cases still running are not waited for either.
+  while (running.size > 0 && failure === null) await next();
   if (failure !== null) throw failure;
-  signal?.throwIfAborted();
 }
 
 /** `signal` cancels the build between volumes; a cancelled build leaves the output folder as it was. */

@@ -54,6 +54,21 @@ describe('veil build on worker threads', () => {
     expect(existsSync(out) ? readdirSync(out) : []).toEqual([]);
   });
 
+  it('stops at once when cancelled while workers run, and leaves the output folder empty', async () => {
+    const { dir, template } = writeTinyStudy({ shape: [8, 64, 64] });
+    const out = join(dir, 'study');
+    const controller = new AbortController();
+    let images = 0;
+    const build = buildStudy(loadTemplate(template), out, () => {
+      images++;
+      controller.abort();
+    }, controller.signal, { threads: 2 });
+    await expect(build).rejects.toThrow(/abort/i);
+    // Cancelled at the first image: the first case's three images are not all waited for.
+    expect(images).toBeLessThan(3);
+    expect(existsSync(out) ? readdirSync(out) : []).toEqual([]);
+  });
+
   it('reports a grid problem found by a worker as a build error', async () => {
     const { dir, template } = writeTinyStudy({ shape: [3, 24, 24] });
     const { writeNpy } = await import('../../app/images/npy.ts');
