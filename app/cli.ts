@@ -51,7 +51,7 @@ async function describeBuild(s: BuildSummary): Promise<string> {
       (s.design.leftCount ? `; on the left ${Object.entries(s.design.leftCount).map(([m, n]) => `${m} ${n}`).join(', ')}` : '') +
       (Number.isFinite(s.design.minSameCaseGap) ? `; items of one case at least ${s.design.minSameCaseGap} apart` : '; each case at most once a session') + '.',
     `Workspace (coordinator only, holds the key): ${s.workspace}`,
-    ...s.kits.map((k) => `Kit for ${k.reader}: ${k.path} (${k.items} items; per session ${k.perSession.join(' / ')})${k.zip ? `; for transfer: ${k.zip}` : ''}`),
+    ...s.kits.map((k) => `Kit for ${k.reader}: ${k.path} (${k.items} items; per session ${k.perSession.join(' / ')})${k.zip ? `; for transfer: ${k.zip}` : ''}${k.zipSkipped ? `; not zipped: ${k.zipSkipped}` : ''}`),
     s.metrics ? `Image metrics against the reference for ${s.metrics} items (stored in the workspace only).` : 'No image metrics (no reference).',
     ...s.metricNotes,
     s.blinding ? formatBlindingStrength(s.blinding) : 'Blinding-strength check: needs at least two cases and two methods.',

@@ -24,7 +24,7 @@ import { blackOut, burnedInDecision } from './burned-in.ts';
 import { DISPLAY_MAX, displayMapFor, percentileWindow, toDisplayUint16 } from './display-scale.ts';
 import { makeCaseImages, type CaseDone, type CaseImage, type CaseJob } from './case-images.ts';
 import { CaseWorkers } from './build-workers.ts';
-import { zipKit } from './kit-zip.ts';
+import { zipKit, zipLimitProblem } from './kit-zip.ts';
 import { WriteQueue } from './write-queue.ts';
 import { KIT_FORMAT, KIT_MANIFEST, KIT_VERSION, type KitItem, type KitManifest } from './kit-format.ts';
 
@@ -53,7 +53,7 @@ export interface BuildSummary {
   blinding: BlindingStrength | null;
   workspace: string;
   /** `zip`: the kit as one archive for transfer (`BuildOptions.zip`). */
-  kits: { reader: string; kitId: string; path: string; zip?: string; items: number; perSession: number[] }[];
+  kits: { reader: string; kitId: string; path: string; zip?: string; zipSkipped?: string; items: number; perSession: number[] }[];
 }
 
 export interface BuildOptions {
@@ -65,6 +65,8 @@ export interface BuildOptions {
   threads?: number;
   /** Also write each kit as `kits/<reader>.zip` for transfer (./kit-zip.ts). */
   zip?: boolean;
+  /** Kits larger than this are not zipped (default ZIP_MAX_BYTES; smaller in tests). */
+  zipMaxBytes?: number;
 }
 
 /** Sources of at least this many bytes in all are built on worker threads by default. */
@@ -330,6 +332,11 @@ export async function buildStudy(
       for (const k of kits) {
         signal?.throwIfAborted();
         onProgress?.({ done, total, what: `kit ${k.reader}: zip for transfer` });
+        const tooLarge = zipLimitProblem(join(staging, KITS_DIR, k.reader), options.zipMaxBytes);
+        if (tooLarge) {
+          k.zipSkipped = tooLarge;
+          continue;
+        }
         await zipKit(join(staging, KITS_DIR, k.reader), join(staging, KITS_DIR, `${k.reader}.zip`));
         k.zip = join(out, KITS_DIR, `${k.reader}.zip`);
       }

@@ -3,7 +3,7 @@
  * byte, which the reading room then opens and verifies; its entries carry no date; and the build
  * command prints where each archive is.
  */
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { unzipSync } from 'fflate';
 import { describe, expect, it } from 'vitest';
@@ -61,6 +61,18 @@ describe('kits zipped for transfer', () => {
       expect(kit.items).toHaveLength(summary.kits[0].items);
     } finally {
       api.close();
+    }
+  });
+
+  it('leaves a kit too large for plain ZIP unzipped and says why, instead of writing a broken archive', async () => {
+    const { dir, template } = writeTinyStudy();
+    const out = join(dir, 'study');
+    const summary = await buildStudy(loadTemplate(template), out, undefined, undefined, { zip: true, zipMaxBytes: 1000 });
+    for (const k of summary.kits) {
+      expect(k.zip).toBeUndefined();
+      expect(k.zipSkipped).toMatch(new RegExp(`^kit ${k.reader} holds \\d+\\.\\d+ GB, more than one ZIP archive without ZIP64 takes .*; send its folder instead$`));
+      expect(existsSync(join(out, 'kits', `${k.reader}.zip`))).toBe(false);
+      expect(existsSync(join(k.path, 'kit.json'))).toBe(true);
     }
   });
 
