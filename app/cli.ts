@@ -218,11 +218,20 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
       }
     });
 
-  program.command('serve').argument('[dir]', 'study folder or reading kit', '.')
+  program.command('serve').argument('[dir]', 'study folder, reading kit, or a kit archive (.zip, unpacked beside itself)', '.')
     .description('serve the reading room on http://127.0.0.1 (token-protected)')
     .addOption(new Option('--port <n>', 'port (default: PORT or VEIL_PORT, else a free one)').argParser((v) => parsePort(v)))
     .option('--no-open', 'do not open a browser')
     .action(async (dir: string, o: { port?: number; open: boolean }) => {
+      const { isKitArchive, unpackKit, KitArchiveError } = await import('./blinding/kit-unzip.ts');
+      if (isKitArchive(dir)) {
+        try {
+          dir = unpackKit(dir);
+        } catch (e) {
+          throw e instanceof KitArchiveError ? new InputError(e.message) : e;
+        }
+        io.err(`Kit unpacked to ${dir}; Veil reads and answers it there.\n`);
+      }
       await hooks.serve(dir, { port: o.port, open: o.open });
     });
 

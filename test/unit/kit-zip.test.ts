@@ -3,11 +3,12 @@
  * byte, which the reading room then opens and verifies; its entries carry no date; and the build
  * command prints where each archive is.
  */
-import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
-import { unzipSync } from 'fflate';
+import { strToU8, unzipSync, zipSync } from 'fflate';
 import { describe, expect, it } from 'vitest';
 import { buildStudy } from '../../app/blinding/build.ts';
+import { unpackKit } from '../../app/blinding/kit-unzip.ts';
 import { listFiles, INTEGRITY_FILE } from '../../app/blinding/kit-integrity.ts';
 import { createApi } from '../../app/api.ts';
 import { runCli } from '../../app/cli.ts';
@@ -82,5 +83,59 @@ describe('kits zipped for transfer', () => {
     const code = await runCli(['build', template, '--out', join(dir, 'study'), '--zip'], { serve: async () => {} }, { out: (t) => (text += t), err: () => {}, isTTY: false });
     expect(code).toBe(0);
     expect(text).toContain(`for transfer: ${join(dir, 'study', 'kits', 'R2.zip')}`);
+  });
+});
+
+describe('kit archives unpacked for reading (veil serve R1.zip)', () => {
+  async function zippedKit(): Promise<{ zip: string; items: number; reader: string }> {
+    const { dir, template } = writeTinyStudy();
+    const summary = await buildStudy(loadTemplate(template), join(dir, 'study'), undefined, undefined, { zip: true });
+    const k = summary.kits[0];
+    // The reader's machine: the archive alone in a downloads folder.
+    const downloads = tempDir('veil-downloads-');
+    const zip = join(downloads, `${k.reader}.zip`);
+    writeFileSync(zip, readFileSync(k.zip!));
+    return { zip, items: k.items, reader: k.reader };
+  }
+
+  it('unpacks beside the archive once, serves the folder, and keeps the answers on a second open', async () => {
+    const { zip, items, reader } = await zippedKit();
+    let served = '';
+    const messages: string[] = [];
+    const io = { out: () => {}, err: (t: string) => messages.push(t), isTTY: false };
+    const code = await runCli(['serve', zip, '--no-open'], { serve: async (d) => { served = d; } }, io);
+    expect(code).toBe(0);
+    expect(served).toBe(join(dirname(zip), reader));
+    expect(messages.join('')).toContain(`Kit unpacked to ${served}`);
+    const api = createApi(served);
+    try {
+      expect((await api.openKit({ reader })).items).toHaveLength(items);
+    } finally {
+      api.close();
+    }
+    writeFileSync(join(served, 'marker-of-answers'), 'kept');
+    expect(unpackKit(zip)).toBe(served);
+    expect(readFileSync(join(served, 'marker-of-answers'), 'utf8')).toBe('kept');
+  });
+
+  it('never overwrites a folder that holds another kit or other files', async () => {
+    const { zip, reader } = await zippedKit();
+    mkdirSync(join(dirname(zip), reader));
+    writeFileSync(join(dirname(zip), reader, 'notes.txt'), 'mine');
+    expect(() => unpackKit(zip)).toThrow(/already exists and holds other files; move it away/);
+    expect(readFileSync(join(dirname(zip), reader, 'notes.txt'), 'utf8')).toBe('mine');
+  });
+
+  it('refuses entries that would land outside the kit folder, and archives that are not kits, writing nothing', () => {
+    const downloads = tempDir('veil-downloads-');
+    const evil = join(downloads, 'R9.zip');
+    writeFileSync(evil, zipSync({ 'R9/kit.json': strToU8('{"kitId":"x"}'), 'R9/../../escaped.txt': strToU8('x') }));
+    expect(() => unpackKit(evil)).toThrow(/entry 'R9\/\.\.\/\.\.\/escaped\.txt' would land outside the kit folder/);
+    expect(readdirSync(downloads)).toEqual(['R9.zip']);
+    const other = join(downloads, 'photos.zip');
+    writeFileSync(other, zipSync({ 'photos/a.txt': strToU8('x') }));
+    expect(() => unpackKit(other)).toThrow(/holds no kit\.json under one top folder: not a Veil kit archive/);
+    writeFileSync(join(downloads, 'cut.zip'), readFileSync(evil).subarray(0, 40));
+    expect(() => unpackKit(join(downloads, 'cut.zip'))).toThrow(/cut\.zip: no ZIP end-of-directory record/);
   });
 });
