@@ -32,14 +32,23 @@ export interface LogEnergy {
   masked: number;
 }
 
-const [G0, G1, G2, G3, G4, G5, G6, G7] = gaussianHalfKernel(HFEN_SIGMA, RADIUS, 0).half;
-const [D0, D1, D2, D3, D4, D5, D6, D7] = gaussianHalfKernel(HFEN_SIGMA, RADIUS, 2).half;
+/**
+ * The kernels' halves (Gaussian G0..G7, second derivative D0..D7), copied into each pass's own
+ * constants at its start: a bundler may turn module-level constants into variables, which the
+ * compiler would then reload at every pixel (the LoG ran at half speed that way).
+ */
+const K = (() => {
+  const [G0, G1, G2, G3, G4, G5, G6, G7] = gaussianHalfKernel(HFEN_SIGMA, RADIUS, 0).half;
+  const [D0, D1, D2, D3, D4, D5, D6, D7] = gaussianHalfKernel(HFEN_SIGMA, RADIUS, 2).half;
+  return { G0, G1, G2, G3, G4, G5, G6, G7, D0, D1, D2, D3, D4, D5, D6, D7 };
+})();
 
 /**
  * One padded row (C + 14 values) to its second derivative (`along`) and Gaussian (`across`) along
  * the row, written at [at, at + C).
  */
 function filterRow(p: Float64Array, C: number, along: Float64Array, across: Float64Array, at: number): void {
+  const { G0, G1, G2, G3, G4, G5, G6, G7, D0, D1, D2, D3, D4, D5, D6, D7 } = K;
   for (let c = 0; c < C; c++) {
     const m = c + RADIUS;
     const x0 = p[m];
@@ -61,6 +70,7 @@ function filterRow(p: Float64Array, C: number, along: Float64Array, across: Floa
  * input rows (top to bottom, borders already reflected).
  */
 function filterColumns(along: Float64Array, across: Float64Array, rows: Int32Array, C: number, out: Float64Array): void {
+  const { G0, G1, G2, G3, G4, G5, G6, G7, D0, D1, D2, D3, D4, D5, D6, D7 } = K;
   const [u7, u6, u5, u4, u3, u2, u1, o, v1, v2, v3, v4, v5, v6, v7] = rows;
   for (let c = 0; c < C; c++) {
     out[c] =

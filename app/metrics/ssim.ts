@@ -34,10 +34,18 @@ export const SSIM_SIGMA = 1.5;
 export const SSIM_TRUNCATE = 3.5;
 const RADIUS = kernelRadius(SSIM_SIGMA, SSIM_TRUNCATE); // 5
 export const SSIM_WINDOW = 2 * RADIUS + 1; // 11
-const [W0, W1, W2, W3, W4, W5] = gaussianHalfKernel(SSIM_SIGMA, RADIUS).half;
+/**
+ * The window's half (W0 the centre), copied into each pass's own constants: a bundler may turn
+ * module-level constants into variables, which the compiler would then reload at every pixel.
+ */
+const K = (() => {
+  const [W0, W1, W2, W3, W4, W5] = gaussianHalfKernel(SSIM_SIGMA, RADIUS).half;
+  return { W0, W1, W2, W3, W4, W5 };
+})();
 
 /** Horizontal window sums of one row (`src`, length C) for the valid columns, into dst[at...]. */
 function horizontal(src: Float64Array, C: number, dst: Float64Array, at: number): void {
+  const { W0, W1, W2, W3, W4, W5 } = K;
   for (let c = RADIUS; c < C - RADIUS; c++) {
     dst[at++] =
       W0 * src[c] +
@@ -51,6 +59,7 @@ function horizontal(src: Float64Array, C: number, dst: Float64Array, at: number)
 
 /** Vertical window sum at h[o], rows `stride` apart. */
 function vertical(h: Float64Array, o: number, stride: number): number {
+  const { W0, W1, W2, W3, W4, W5 } = K;
   return (
     W0 * h[o] +
     W1 * (h[o - stride] + h[o + stride]) +
