@@ -66,12 +66,16 @@ function filterRow(p: Float64Array, C: number, along: Float64Array, across: Floa
 
 /**
  * The LoG of one output row from the row-filtered slices: Gaussian down the columns of `along`
- * plus second derivative down the columns of `across`. `rows` holds the start offsets of the 15
- * input rows (top to bottom, borders already reflected).
+ * plus second derivative down the columns of `across`. `rows[first .. first + 14]` hold the start
+ * offsets of the 15 input rows (top to bottom, borders already reflected).
  */
-function filterColumns(along: Float64Array, across: Float64Array, rows: Int32Array, C: number, out: Float64Array): void {
+function filterColumns(along: Float64Array, across: Float64Array, rows: Int32Array, first: number, C: number, out: Float64Array): void {
   const { G0, G1, G2, G3, G4, G5, G6, G7, D0, D1, D2, D3, D4, D5, D6, D7 } = K;
-  const [u7, u6, u5, u4, u3, u2, u1, o, v1, v2, v3, v4, v5, v6, v7] = rows;
+  // Read one by one: destructuring a typed array goes through an iterator, allocating per row.
+  const u7 = rows[first], u6 = rows[first + 1], u5 = rows[first + 2], u4 = rows[first + 3];
+  const u3 = rows[first + 4], u2 = rows[first + 5], u1 = rows[first + 6], o = rows[first + 7];
+  const v1 = rows[first + 8], v2 = rows[first + 9], v3 = rows[first + 10], v4 = rows[first + 11];
+  const v5 = rows[first + 12], v6 = rows[first + 13], v7 = rows[first + 14];
   for (let c = 0; c < C; c++) {
     out[c] =
       G0 * along[o + c] +
@@ -123,7 +127,7 @@ function logEnergy(
       filterRow(padded, C, along, across, r * C);
     }
     for (let r = 0; r < R; r++) {
-      filterColumns(along, across, rowStart.subarray(r, r + HFEN_SIZE), C, out);
+      filterColumns(along, across, rowStart, r, C, out);
       const m = base + r * C;
       for (let c = 0; c < C; c++) {
         const e = out[c] * out[c];

@@ -65,3 +65,18 @@ describe('metrics over worker threads', () => {
     await none.close();
   });
 });
+
+describe('worker threads under process-wide Node flags', () => {
+  it('veil metrics still runs when Node was started with a flag workers refuse (--trace-gc)', async () => {
+    const { spawnSync } = await import('node:child_process');
+    const { join } = await import('node:path');
+    const c = fixture.cases[0];
+    const r = spawnSync(process.execPath, ['--trace-gc', join(import.meta.dirname, '..', '..', 'bin', 'veil.mjs'), 'metrics',
+      '--reference', DIR + c.reference, '--test', DIR + c.test, '--json'], { encoding: 'utf8', env: { ...process.env, VEIL_NO_RELAUNCH: '1' }, maxBuffer: 1 << 26 });
+    expect(r.stderr).not.toContain('invalid execArgv');
+    expect(r.status).toBe(0);
+    // --trace-gc writes its own lines to stdout too: pick the metric out of them.
+    const ssim = Number(/"ssim": ([0-9.e-]+)/.exec(r.stdout)?.[1]);
+    expect(Math.abs(ssim - c.native.ssim)).toBeLessThan(1e-6);
+  });
+});
