@@ -18,6 +18,7 @@
  * x − y), and ‖LoG(x)‖² can be computed once per reference and reused for every test image.
  */
 import { gaussianHalfKernel, reflectIndex } from './gaussian-kernel.ts';
+import { sliceKernels } from './slice-kernels.ts';
 import type { SliceGeometry } from './ssim.ts';
 
 export const HFEN_SIGMA = 1.5;
@@ -99,7 +100,8 @@ function filterColumns(along: Float64Array, across: Float64Array, rows: Int32Arr
 
 /**
  * Filters each slice [from, to) of a − b (b null: a alone; slice-major layout) with the LoG and
- * adds up the squares of the result.
+ * adds up the squares of the result: on the WebAssembly kernels where they load
+ * (./slice-kernels.ts), else with the passes above.
  */
 function logEnergy(
   a: Float32Array,
@@ -110,6 +112,21 @@ function logEnergy(
   to: number,
 ): LogEnergy {
   const { rows: R, columns: C } = geometry;
+  const kernels = sliceKernels();
+  if (kernels) {
+    const plane = R * C;
+    const G = [K.G0, K.G1, K.G2, K.G3, K.G4, K.G5, K.G6, K.G7];
+    const D = [K.D0, K.D1, K.D2, K.D3, K.D4, K.D5, K.D6, K.D7];
+    let all = 0;
+    let masked = 0;
+    for (let s = from; s < to; s++) {
+      const e = kernels.logSlice(a.subarray(s * plane, (s + 1) * plane), b?.subarray(s * plane, (s + 1) * plane) ?? null,
+        mask?.subarray(s * plane, (s + 1) * plane) ?? null, R, C, G, D);
+      all += e.all;
+      masked += e.masked;
+    }
+    return { all, masked };
+  }
   const colMap = Int32Array.from({ length: C + 2 * RADIUS }, (_, i) => reflectIndex(i - RADIUS, C));
   const rowStart = Int32Array.from({ length: R + 2 * RADIUS }, (_, i) => reflectIndex(i - RADIUS, R) * C);
   const padded = new Float64Array(C + 2 * RADIUS);

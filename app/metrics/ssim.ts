@@ -26,6 +26,7 @@
  * (σx² + σy² needs only w∗(x² + y²)), a second pass the vertical sums and the SSIM value, so each
  * pixel is filtered 2 × 4 times with the symmetric 11 taps folded to 6 multiplications.
  */
+import { sliceKernels } from './slice-kernels.ts';
 import { gaussianHalfKernel, kernelRadius } from './gaussian-kernel.ts';
 
 export const SSIM_K1 = 0.01;
@@ -86,7 +87,8 @@ export interface SsimSliceSums {
 
 /**
  * SSIM of slices [from, to) of two volumes stored slice-major (slice, row, column).
- * `mask` (optional, same layout) selects the pixels of the masked mean.
+ * `mask` (optional, same layout) selects the pixels of the masked mean. Runs on the WebAssembly
+ * kernels where they load (./slice-kernels.ts), else on the passes below.
  */
 export function ssimSlices(
   reference: Float32Array,
@@ -103,6 +105,23 @@ export function ssimSlices(
   }
   const c1 = (SSIM_K1 * dataRange) ** 2;
   const c2 = (SSIM_K2 * dataRange) ** 2;
+  const interiorPixels = (R - 2 * RADIUS) * (C - 2 * RADIUS);
+
+  const kernels = sliceKernels();
+  if (kernels) {
+    const n = to - from;
+    const out: SsimSliceSums = { mean: new Float64Array(n), maskedSum: new Float64Array(n), maskedCount: new Float64Array(n) };
+    const plane = R * C;
+    const w = [K.W0, K.W1, K.W2, K.W3, K.W4, K.W5];
+    for (let s = from; s < to; s++) {
+      const r = kernels.ssimSlice(reference.subarray(s * plane, (s + 1) * plane), test.subarray(s * plane, (s + 1) * plane),
+        mask?.subarray(s * plane, (s + 1) * plane) ?? null, R, C, w, c1, c2);
+      out.mean[s - from] = r.sum / interiorPixels;
+      out.maskedSum[s - from] = r.maskedSum;
+      out.maskedCount[s - from] = r.maskedCount;
+    }
+    return out;
+  }
 
   // Horizontal sums exist for the valid columns only: the interior never needs the others.
   const Cv = C - 2 * RADIUS;
