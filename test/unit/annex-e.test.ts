@@ -18,7 +18,7 @@ import { buildStudy } from '../../app/blinding/build.ts';
 import { loadTemplate } from '../../app/study/parse-template.ts';
 
 const FIXTURE = join(import.meta.dirname, '..', 'reference', 'annex-e');
-const planted = (JSON.parse(readFileSync(join(FIXTURE, 'planted.json'), 'utf8')) as { planted: { keyword: string; value: string }[] }).planted;
+const planted = (JSON.parse(readFileSync(join(FIXTURE, 'planted.json'), 'utf8')) as { planted: { tag: string; value: string }[] }).planted;
 
 function allFiles(dir: string): string[] {
   return readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? allFiles(join(dir, e.name)) : [join(dir, e.name)]));
@@ -38,11 +38,15 @@ function contents(file: string): Buffer[] {
 describe('de-identification (DICOM PS3.15 Annex E)', () => {
   it('plants enough values to be meaningful', () => {
     expect(planted.length).toBeGreaterThan(1500);
-    for (const k of ['PatientName', 'PatientID', 'PatientBirthDate', 'AccessionNumber', 'StudyInstanceUID', 'SeriesInstanceUID',
-      'InstitutionName', 'ReferringPhysicianName', 'StationName', 'DeviceSerialNumber', 'StudyDescription', 'SeriesDescription',
-      'ProtocolName', 'ImageComments', 'StudyDate', 'AcquisitionTime', 'OperatorsName', 'FrameOfReferenceUID']) {
-      expect(planted.some((p) => p.keyword === k), k).toBe(true);
-    }
+    // Attributes of Annex E's table that must be among them, by tag (PS3.6).
+    const required: Record<string, string> = {
+      PatientName: '(0010,0010)', PatientID: '(0010,0020)', PatientBirthDate: '(0010,0030)', AccessionNumber: '(0008,0050)',
+      StudyInstanceUID: '(0020,000D)', SeriesInstanceUID: '(0020,000E)', InstitutionName: '(0008,0080)',
+      ReferringPhysicianName: '(0008,0090)', StationName: '(0008,1010)', DeviceSerialNumber: '(0018,1000)',
+      StudyDescription: '(0008,1030)', SeriesDescription: '(0008,103E)', ProtocolName: '(0018,1030)', ImageComments: '(0020,4000)',
+      StudyDate: '(0008,0020)', AcquisitionTime: '(0008,0032)', OperatorsName: '(0008,1070)', FrameOfReferenceUID: '(0020,0052)',
+    };
+    for (const [name, tag] of Object.entries(required)) expect(planted.some((p) => p.tag === tag), name).toBe(true);
     // The sources really carry them: the scan below would find them there.
     const source = readFileSync(join(FIXTURE, 'sources', 'case-1', 'alpha', 'slice-1.dcm'));
     expect(planted.filter((p) => source.includes(Buffer.from(p.value))).length).toBeGreaterThan(1400);
@@ -81,7 +85,7 @@ readers: [R1, R2]
       const path = relative(out, f);
       for (const body of contents(f)) {
         for (const p of planted) {
-          if (body.includes(Buffer.from(p.value)) || path.includes(p.value)) hits.push(`${p.keyword} (${p.value}) in ${path}`);
+          if (body.includes(Buffer.from(p.value)) || path.includes(p.value)) hits.push(`${p.tag} (${p.value}) in ${path}`);
         }
       }
     }

@@ -12,7 +12,8 @@ The leak test builds reading kits from these sources and scans every byte of eve
 every path for every planted value: the expected number of hits is zero.
 
 Run with Debian's python3 (pydicom): /usr/bin/python3 make-fixture.py
-Writes: sources/case-{1,2}/{alpha,beta}/slice-{1,2}.dcm and planted.json (values to scan for).
+Writes: sources/case-{1,2}/{alpha,beta}/slice-{1,2}.dcm and planted.json (values to scan for, each
+with its tag: "(gggg,eeee)", "<sequence> > (0010,0020)" or "private").
 """
 import json
 import os
@@ -66,7 +67,7 @@ def planted_dataset():
         value = planted_value(vr, n)
         setattr(ds, keyword, value)
         if vr != "AS":  # AS values are too short to be distinctive; they are planted but not scanned
-            planted.append({"tag": f"({group:04X},{tag & 0xFFFF:04X})", "keyword": keyword, "vr": vr, "value": value})
+            planted.append({"tag": f"({group:04X},{tag & 0xFFFF:04X})", "vr": vr, "value": value})
     # Nested sequences with identity inside.
     for keyword in ("OtherPatientIDsSequence", "ReferencedStudySequence", "RequestAttributesSequence", "ProcedureCodeSequence"):
         n += 1
@@ -74,14 +75,14 @@ def planted_dataset():
         item.PatientID = f"VLKSEQ{n:04d}"
         item.CodeMeaning = f"VLKSEQ{n:04d}MEANING"
         setattr(ds, keyword, Sequence([item]))
-        planted.append({"tag": keyword, "keyword": keyword + ".PatientID", "vr": "LO", "value": f"VLKSEQ{n:04d}"})
+        planted.append({"tag": f"{keyword} > (0010,0020)", "vr": "LO", "value": f"VLKSEQ{n:04d}"})
     # Private tags: a private creator and free-text values in a private block.
     ds.add_new(0x00090010, "LO", "VLKPRIVATECREATOR")
     ds.add_new(0x00091001, "LO", "VLKPRIVATEVALUE1")
     ds.add_new(0x00091002, "LT", "VLKPRIVATE free text about the patient")
     ds.add_new(0x00291010, "OB", b"VLKPRIVATEBINARY")
     for v in ("VLKPRIVATECREATOR", "VLKPRIVATEVALUE1", "VLKPRIVATE free text about the patient", "VLKPRIVATEBINARY"):
-        planted.append({"tag": "private", "keyword": "private", "vr": "LO", "value": v})
+        planted.append({"tag": "private", "vr": "LO", "value": v})
     return ds, planted
 
 
