@@ -223,14 +223,11 @@ export function buildProgram(hooks: CliHooks, io: CliIO = defaultIO): Command {
     .addOption(new Option('--port <n>', 'port (default: PORT or VEIL_PORT, else a free one)').argParser((v) => parsePort(v)))
     .option('--no-open', 'do not open a browser')
     .action(async (dir: string, o: { port?: number; open: boolean }) => {
-      const { isKitArchive, unpackKit, KitArchiveError } = await import('./blinding/kit-unzip.ts');
-      if (isKitArchive(dir)) {
-        try {
-          dir = unpackKit(dir);
-        } catch (e) {
-          throw e instanceof KitArchiveError ? new InputError(e.message) : e;
-        }
-        io.err(`Kit unpacked to ${dir}; Veil reads and answers it there.\n`);
+      const { kitFolderFor, KitArchiveError } = await import('./blinding/kit-unzip.ts');
+      try {
+        dir = kitFolderFor(dir, (line) => io.err(`${line}\n`));
+      } catch (e) {
+        throw e instanceof KitArchiveError ? new InputError(e.message) : e;
       }
       await hooks.serve(dir, { port: o.port, open: o.open });
     });

@@ -13,7 +13,7 @@ import { WORKSPACE_FILE } from '../app/store/workspace.ts';
 import { buildParts } from './build-parts.ts';
 import { DEFAULT_DATA, REPO_ROOT, RENDERER_DIST } from './paths.ts';
 import { serveUntilStopped } from './serve.ts';
-import { isKitArchive, unpackKit } from '../app/blinding/kit-unzip.ts';
+import { kitFolderFor } from '../app/blinding/kit-unzip.ts';
 
 const log = (s: string) => process.stderr.write(`${s}\n`);
 
@@ -39,13 +39,7 @@ async function ensureRenderer(): Promise<void> {
 }
 
 async function ensureStudy(): Promise<string> {
-  if (process.env.VEIL_STUDY) {
-    const chosen = resolve(process.env.VEIL_STUDY);
-    if (!isKitArchive(chosen)) return chosen;
-    const dir = unpackKit(chosen); // a kit archive from `veil build --zip`: unpacked beside itself once
-    log(`Kit unpacked to ${dir}; Veil reads and answers it there.`);
-    return dir;
-  }
+  if (process.env.VEIL_STUDY) return kitFolderFor(resolve(process.env.VEIL_STUDY), log);
   const demo = join(DEFAULT_DATA, 'demo');
   if (!existsSync(join(demo, WORKSPACE_FILE))) {
     log(`Creating the invented demo study in ${demo} (synthetic phantoms, simulated readers)…`);

@@ -85,8 +85,8 @@ function kitIdOf(bytes: Buffer): string | null {
   }
 }
 
-/** Unpacks a kit archive beside itself (once) and returns the kit folder. */
-export function unpackKit(zipPath: string): string {
+/** Unpacks a kit archive beside itself (once); returns the kit folder and whether it was unpacked now. */
+export function unpackKit(zipPath: string): { dir: string; unpacked: boolean } {
   const zip = resolve(zipPath);
   const fail: (why: string) => never = (why) => {
     throw new KitArchiveError(`${zip}: ${why}`);
@@ -123,7 +123,7 @@ export function unpackKit(zipPath: string): string {
     const manifest = read(files.find((e) => e.name === `${top}/${KIT_MANIFEST}`)!);
     if (existsSync(target)) {
       const present = existsSync(join(target, KIT_MANIFEST)) ? kitIdOf(readFileSync(join(target, KIT_MANIFEST))) : null;
-      if (present !== null && present === kitIdOf(manifest)) return target; // unpacked before: keep the reader's answers
+      if (present !== null && present === kitIdOf(manifest)) return { dir: target, unpacked: false }; // keep the reader's answers
       fail(`${target} already exists and holds ${present ? 'another kit' : 'other files'}; move it away to unpack this kit there`);
     }
     temp = join(dirname(zip), `.${top}.unpacking-${process.pid}`);
@@ -137,12 +137,20 @@ export function unpackKit(zipPath: string): string {
     }
     renameSync(temp, target);
     temp = null;
-    return target;
+    return { dir: target, unpacked: true };
   } finally {
     closeSync(fd);
     if (temp) rmSync(temp, { recursive: true, force: true });
   }
 }
 
-/** True for a path that names a kit archive. */
-export const isKitArchive = (path: string): boolean => basename(path).toLowerCase().endsWith('.zip');
+/**
+ * The folder to open for a study folder, kit folder or kit archive (`veil serve`, `npm start`):
+ * an archive is unpacked beside itself the first time, and `say` tells the user where it went.
+ */
+export function kitFolderFor(path: string, say: (line: string) => void): string {
+  if (!basename(path).toLowerCase().endsWith('.zip')) return path;
+  const { dir, unpacked } = unpackKit(path);
+  say(unpacked ? `Kit unpacked to ${dir}; Veil reads and answers it there.` : `Kit already unpacked at ${dir}; opening it there, answers included.`);
+  return dir;
+}

@@ -114,7 +114,7 @@ describe('kit archives unpacked for reading (veil serve R1.zip)', () => {
       api.close();
     }
     writeFileSync(join(served, 'marker-of-answers'), 'kept');
-    expect(unpackKit(zip)).toBe(served);
+    expect(unpackKit(zip)).toEqual({ dir: served, unpacked: false });
     expect(readFileSync(join(served, 'marker-of-answers'), 'utf8')).toBe('kept');
   });
 
