@@ -63,11 +63,6 @@ export class MetricWorkers {
     }
   }
 
-  /** Threads that share a large pair: the workers and the calling thread. */
-  get threads(): number {
-    return this.workers.length - this.broken.size + 1;
-  }
-
   private lose(w: Worker, e: Error): void {
     if (this.broken.has(w)) return;
     this.broken.add(w);
