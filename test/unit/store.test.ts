@@ -1,9 +1,10 @@
 import Database from 'better-sqlite3';
+import { writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { spawnSync } from 'node:child_process';
 import { describe, expect, it } from 'vitest';
 import { openDatabase } from '../../app/store/open.ts';
-import { readerMigrations, workspaceMigrations } from '../../app/store/migrations.ts';
+import { migrate, readerMigrations, workspaceMigrations } from '../../app/store/migrations.ts';
 import { currentScores, openReaderAnswers, recordSubmission } from '../../app/store/reader-answers.ts';
 import { DatabaseLockedError } from '../../app/store/lock.ts';
 import { tempDir } from './helpers.ts';
@@ -30,6 +31,25 @@ describe('store', () => {
     raw.pragma(`user_version = ${readerMigrations.length + 5}`);
     raw.close();
     expect(() => openDatabase(file, 'reader')).toThrow(/answers\.sqlite was written by a newer Veil/);
+  });
+
+  it('finishes the tables of an answer database left by a kill between its migrations, or left empty', () => {
+    const dir = tempDir();
+    // Killed after the first migration committed: the later tables are missing.
+    const partial = join(dir, 'partial.sqlite');
+    const raw = new Database(partial);
+    migrate(raw, readerMigrations.slice(0, 1), partial);
+    raw.close();
+    // Killed after the file was made, before any table: an empty file.
+    const empty = join(dir, 'empty.sqlite');
+    writeFileSync(empty, '');
+    for (const file of [partial, empty]) {
+      const { db, close } = openReaderAnswers(file, 'kit-1', 'R1');
+      expect(db.pragma('user_version', { simple: true })).toBe(readerMigrations.at(-1)!.version);
+      recordSubmission(db, { itemId: 'x1', scores: { q: 2 }, seconds: 1 });
+      expect(currentScores(db).get('x1')).toEqual({ q: 2 });
+      close();
+    }
   });
 
   it('keeps answers append-only: a change is a new revision, updates and deletes are refused', () => {
