@@ -1,15 +1,20 @@
 /**
  * The relaunch of heavy `veil` commands with glibc's huge-page tunable (bin/huge-pages.mjs): the
  * second process sees the tunable and the same arguments, its exit code comes back, and killing
- * the first process outright (SIGKILL, which cannot be forwarded) stops the second too.
+ * the first process outright (SIGKILL, which cannot be forwarded) stops the second too; `npm start`
+ * serves from such a second process.
  */
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { buildStudy } from '../../app/blinding/build.ts';
+import { loadTemplate } from '../../app/study/parse-template.ts';
+import { writeTinyStudy } from './helpers.ts';
 
-const MODULE = join(import.meta.dirname, '..', '..', 'bin', 'huge-pages.mjs');
+const REPO = join(import.meta.dirname, '..', '..');
+const MODULE = join(REPO, 'bin', 'huge-pages.mjs');
 
 /** A script file that starts as a `veil` entry point does, then runs `body`. */
 function script(body: string): string {
@@ -72,5 +77,35 @@ describe.runIf(process.platform === 'linux')('relaunch with huge pages', () => {
     const gone = Date.now() + 5_000;
     while (alive(second) && Date.now() < gone) await new Promise((r) => setTimeout(r, 50));
     expect(alive(second)).toBe(false);
+  });
+
+  it('npm start serves from a process with the tunable, which stops when npm start is stopped', async () => {
+    const { template, dir } = writeTinyStudy();
+    await buildStudy(loadTemplate(template), join(dir, 'out'));
+    const start = spawn(process.execPath, [join(REPO, 'bin', 'start.mjs')], {
+      cwd: REPO,
+      stdio: ['ignore', 'pipe', 'pipe'],
+      env: { ...process.env, VEIL_NO_RELAUNCH: '', GLIBC_TUNABLES: '', VEIL_STUDY: join(dir, 'out'), VEIL_HOST: 'http', BROWSER: 'none', PORT: '0' },
+    });
+    let said = '';
+    start.stderr.on('data', (d) => (said += d));
+    start.stdout.on('data', (d) => (said += d));
+    const deadline = Date.now() + 25_000;
+    while (!said.includes('Veil reading room: http://') && start.exitCode === null && Date.now() < deadline) await new Promise((r) => setTimeout(r, 100));
+    expect(said).toContain('Veil reading room: http://');
+    const children = readdirSync('/proc').filter((p) => /^\d+$/.test(p)).filter((p) => {
+      try {
+        return readFileSync(`/proc/${p}/stat`, 'utf8').replace(/^.*\) /, '').split(' ')[1] === String(start.pid);
+      } catch {
+        return false;
+      }
+    });
+    expect(children).toHaveLength(1);
+    const environ = readFileSync(`/proc/${children[0]}/environ`, 'utf8').split('\0');
+    expect(environ).toContain('GLIBC_TUNABLES=glibc.malloc.hugetlb=1');
+    start.kill('SIGTERM');
+    const gone = Date.now() + 5_000;
+    while (alive(Number(children[0])) && Date.now() < gone) await new Promise((r) => setTimeout(r, 50));
+    expect(alive(Number(children[0]))).toBe(false);
   });
 });
