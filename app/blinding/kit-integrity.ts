@@ -15,7 +15,9 @@ import { canonicalJson } from './canonical-json.ts';
 
 export const INTEGRITY_FILE = 'integrity.json';
 /** Files that live in a kit folder but change while reading, so they are not listed. */
-const UNLISTED = [/^answers\.sqlite(-wal|-shm|\.lock)?$/, /^results(\/|$)/, /^overrides(\/|$)/, new RegExp(`^${INTEGRITY_FILE.replace('.', '\\.')}$`)];
+// The reader's answer database and SQLite's files beside it (a rollback journal can be left by a kill
+// in the moment before the database is switched to WAL), results and overrides are not kit files.
+const UNLISTED = [/^answers\.sqlite(-wal|-shm|-journal|\.lock)?$/, /^results(\/|$)/, /^overrides(\/|$)/, new RegExp(`^${INTEGRITY_FILE.replace('.', '\\.')}$`)];
 
 export interface KitFileEntry { path: string; bytes: number; sha256: string }
 

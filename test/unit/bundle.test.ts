@@ -3,7 +3,8 @@
  * conflicts, and unblinding into the workspace.
  */
 import Database from 'better-sqlite3';
-import { appendFileSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { spawnSync } from 'node:child_process';
+import { appendFileSync, existsSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { createApi } from '../../app/api.ts';
@@ -54,6 +55,34 @@ describe('kit integrity', () => {
     writeFileSync(img, bytes);
     writeFileSync(join(kit, 'images', 'extra.npy'), 'x');
     expect(() => verifyKitIntegrity(kit)).toThrow(/extra\.npy does not belong to the kit/);
+  });
+
+  it('opens a kit whose answer database a kill left with a rollback journal beside it', async () => {
+    const out = await built();
+    const kit = join(out, 'kits', 'R1');
+    // A kill while the new answer database was still in rollback-journal mode leaves
+    // answers.sqlite-journal; here a child writes in that mode and kills itself mid-transaction.
+    const file = join(kit, 'answers.sqlite');
+    const child = spawnSync(process.execPath, ['-e', `
+      const Database = require('better-sqlite3');
+      const db = new Database(${JSON.stringify(file)});
+      db.pragma('cache_size = 1');
+      db.exec('BEGIN; CREATE TABLE spill (x BLOB)');
+      for (let i = 0; i < 200; i++) db.prepare('INSERT INTO spill VALUES (randomblob(4000))').run();
+      process.kill(process.pid, 'SIGKILL');`], { cwd: join(import.meta.dirname, '..', '..') });
+    expect(child.signal).toBe('SIGKILL');
+    expect(existsSync(`${file}-journal`)).toBe(true);
+    const api = createApi(out);
+    try {
+      const k = await api.openKit({ reader: 'R1' });
+      await api.submitAnswer({ reader: 'R1', itemId: k.items[0].id, scores: { sharpness: 4, noise: 2 }, seconds: 2 });
+      expect((await api.openKit({ reader: 'R1' })).answers[k.items[0].id]).toEqual({ sharpness: 4, noise: 2 });
+    } finally { api.close(); }
+    // SQLite rolled the cut transaction back when the database was opened.
+    const db = new Database(file, { readonly: true });
+    try {
+      expect(db.prepare("SELECT COUNT(*) AS n FROM sqlite_master WHERE name = 'spill'").get()).toEqual({ n: 0 });
+    } finally { db.close(); }
   });
 
   it('refuses to open a kit whose manifest was edited', async () => {
