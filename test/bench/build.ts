@@ -4,7 +4,8 @@
  * second against `cp -r` copying the same number of bytes in the same run (goal: at least half of
  * cp's rate), and the peak resident memory of the build process (goal: under 1 GB).
  * The build runs in a child process so its peak memory (getrusage maxRSS, worker threads included)
- * is its own, with the environment `veil build` gives itself (bin/huge-pages.mjs).
+ * is its own, with the environment `veil build` gives itself (bin/huge-pages.mjs). Both timed runs
+ * start after `sync`, so neither pays for the other's writeback.
  */
 import { spawnSync } from 'node:child_process';
 import { mkdirSync, mkdtempSync, readdirSync, rmSync, statSync, writeFileSync } from 'node:fs';
@@ -63,10 +64,13 @@ export async function bench(): Promise<string[]> {
       await buildStudy(loadTemplate(${JSON.stringify(join(root, 'bench.study.yaml'))}), ${JSON.stringify(join(root, 'out'))});
       const ms = performance.now() - t0;
       console.log(JSON.stringify({ ms, maxRssKb: process.resourceUsage().maxRSS }));`;
+    // Each timed run starts with no writeback pending from earlier writes (the sources, the kits).
+    spawnSync('sync');
     const r = spawnSync(process.execPath, ['--import', 'tsx', '--input-type=module', '-e', script], { cwd: REPO, encoding: 'utf8', maxBuffer: 1 << 24, env: withHugePages() });
     if (r.status !== 0) throw new Error(`build bench failed: ${r.stderr}`);
     const { ms, maxRssKb } = JSON.parse(r.stdout.trim().split('\n').at(-1)!) as { ms: number; maxRssKb: number };
     const written = dirBytes(join(root, 'out', 'kits'));
+    spawnSync('sync');
     const t0 = performance.now();
     const cp = spawnSync('cp', ['-r', join(root, 'out', 'kits'), join(root, 'kits-copy')], { env: withoutHugePages() });
     const cpMs = performance.now() - t0;
