@@ -31,11 +31,19 @@ function wanted() {
 }
 
 /**
- * When this process should run with huge pages and does not, runs the same command again with
- * them (same arguments, same terminal) and resolves with its exit code; otherwise resolves null
- * and the caller goes on in this process.
+ * What an entry point calls first. When this process should run with huge pages (`wanted`, and not
+ * yet), the same command runs again with them (same arguments, same terminal) and this process
+ * exits with its exit code; otherwise this process goes on, following its parent if it is the
+ * relaunched one.
  */
-export function relaunchWithHugePages() {
+export async function runWithHugePages(wantedHere = true) {
+  const code = wantedHere ? await relaunchWithHugePages() : null;
+  if (code !== null) process.exit(code);
+  followParent();
+}
+
+/** Runs the command again with huge pages and resolves with its exit code; null when not wanted. */
+function relaunchWithHugePages() {
   if (!wanted()) return Promise.resolve(null);
   return new Promise((done) => {
     const child = spawn(process.execPath, [...process.execArgv, ...process.argv.slice(1)], {
@@ -55,7 +63,7 @@ export function relaunchWithHugePages() {
  * cannot be forwarded) its IPC channel closes, and this process stops too instead of running on
  * unseen. The channel itself does not keep the process alive.
  */
-export function followParent() {
+function followParent() {
   if (!process.env.VEIL_RELAUNCHED || !process.channel) return;
   process.channel.unref();
   process.on('disconnect', () => process.kill(process.pid, 'SIGKILL'));

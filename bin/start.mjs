@@ -3,10 +3,8 @@
 // more with huge pages (huge-pages.mjs), so that a build started from the coordinator's screen
 // allocates its volumes as `veil build` does; the Electron window's API process inherits them.
 import { register } from 'tsx/esm/api';
-import { followParent, relaunchWithHugePages } from './huge-pages.mjs';
+import { runWithHugePages } from './huge-pages.mjs';
 
-const relaunched = await relaunchWithHugePages();
-if (relaunched !== null) process.exit(relaunched);
-followParent();
+await runWithHugePages();
 register();
 await import('../main/launcher.ts');

@@ -4,13 +4,11 @@
 // The commands that read whole studies' volumes start themselves once more with huge pages (see
 // huge-pages.mjs; about 0.1 s to start, against 0.5 s or more saved per 256 MB volume). The
 // others, `serve` among them, stay one process.
-import { followParent, relaunchWithHugePages } from './huge-pages.mjs';
+import { runWithHugePages } from './huge-pages.mjs';
 import { bundledCli } from './cli-bundle.mjs';
 
 const VOLUME_COMMANDS = ['check', 'build', 'metrics', 'demo'];
-const relaunched = VOLUME_COMMANDS.includes(process.argv[2]) ? await relaunchWithHugePages() : null;
-if (relaunched !== null) process.exit(relaunched);
-followParent();
+await runWithHugePages(VOLUME_COMMANDS.includes(process.argv[2]));
 const bundle = await bundledCli();
 if (bundle) await import(bundle);
 else {

@@ -8,13 +8,11 @@
  */
 import { readdirSync } from 'node:fs';
 // @ts-expect-error a plain ES module of the launchers, without types
-import { followParent, relaunchWithHugePages } from '../../bin/huge-pages.mjs';
+import { runWithHugePages } from '../../bin/huge-pages.mjs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 
-const relaunched = await relaunchWithHugePages();
-if (relaunched !== null) process.exit(relaunched);
-followParent();
+await runWithHugePages();
 
 const HERE = import.meta.dirname;
 const wanted = process.argv.slice(2);

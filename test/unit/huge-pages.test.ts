@@ -20,12 +20,16 @@ const MODULE = join(REPO, 'bin', 'huge-pages.mjs');
 function script(body: string): string {
   const file = join(mkdtempSync(join(tmpdir(), 'veil-relaunch-')), 'entry.mjs');
   writeFileSync(file, `
-import { followParent, relaunchWithHugePages } from ${JSON.stringify(MODULE)};
-const code = await relaunchWithHugePages();
-if (code !== null) process.exit(code);
-followParent();
+import { runWithHugePages } from ${JSON.stringify(MODULE)};
+await runWithHugePages();
 ${body}`);
   return file;
+}
+
+/** Polls `done` every 50 ms until it holds or `ms` have passed (the caller then asserts). */
+async function waitUntil(done: () => boolean, ms: number): Promise<void> {
+  const deadline = Date.now() + ms;
+  while (!done() && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
 }
 
 function alive(pid: number): boolean {
@@ -68,14 +72,12 @@ describe.runIf(process.platform === 'linux')('relaunch with huge pages', () => {
       stdio: 'ignore',
       env: { ...process.env, VEIL_NO_RELAUNCH: '' },
     });
-    const deadline = Date.now() + 10_000;
-    while (!existsSync(pidFile) && Date.now() < deadline) await new Promise((r) => setTimeout(r, 50));
+    await waitUntil(() => existsSync(pidFile), 10_000);
     const second = Number(readFileSync(pidFile, 'utf8'));
     expect(second).not.toBe(first.pid);
     expect(alive(second)).toBe(true);
     first.kill('SIGKILL');
-    const gone = Date.now() + 5_000;
-    while (alive(second) && Date.now() < gone) await new Promise((r) => setTimeout(r, 50));
+    await waitUntil(() => !alive(second), 5_000);
     expect(alive(second)).toBe(false);
   });
 
@@ -90,8 +92,7 @@ describe.runIf(process.platform === 'linux')('relaunch with huge pages', () => {
     let said = '';
     start.stderr.on('data', (d) => (said += d));
     start.stdout.on('data', (d) => (said += d));
-    const deadline = Date.now() + 25_000;
-    while (!said.includes('Veil reading room: http://') && start.exitCode === null && Date.now() < deadline) await new Promise((r) => setTimeout(r, 100));
+    await waitUntil(() => said.includes('Veil reading room: http://') || start.exitCode !== null, 25_000);
     expect(said).toContain('Veil reading room: http://');
     const children = readdirSync('/proc').filter((p) => /^\d+$/.test(p)).filter((p) => {
       try {
@@ -104,8 +105,7 @@ describe.runIf(process.platform === 'linux')('relaunch with huge pages', () => {
     const environ = readFileSync(`/proc/${children[0]}/environ`, 'utf8').split('\0');
     expect(environ).toContain('GLIBC_TUNABLES=glibc.malloc.hugetlb=1');
     start.kill('SIGTERM');
-    const gone = Date.now() + 5_000;
-    while (alive(Number(children[0])) && Date.now() < gone) await new Promise((r) => setTimeout(r, 50));
+    await waitUntil(() => !alive(Number(children[0])), 5_000);
     expect(alive(Number(children[0]))).toBe(false);
   });
 });
