@@ -6,12 +6,12 @@
 import { join, resolve } from 'node:path';
 import { ApiError, OPERATIONS, type AppInfo, type KitView, type ReaderEntry, type SubmitRequest, type SubmitResult, type VeilApi } from './api-contract.ts';
 import { findKits, isKitFolder, loadKitManifest, readViewPixels } from './blinding/kit-read.ts';
-import { KIT_MANIFEST, type KitManifest } from './blinding/kit-format.ts';
+import { ANSWERS_FILE, KIT_MANIFEST, type KitManifest } from './blinding/kit-format.ts';
 import { checkFileBytes, KitIntegrityError, verifyKitIntegrity, type KitIntegrity } from './blinding/kit-integrity.ts';
 import { writeResultsBundle } from './blinding/bundle-export.ts';
 import { existsSync, readFileSync } from 'node:fs';
 import {
-  ANSWERS_FILE, completedSessions, currentComments, currentScores, lastDisplayCheck, openReaderAnswers, recordDisplayCheck,
+  completedSessions, currentComments, currentScores, lastDisplayCheck, openReaderAnswers, recordDisplayCheck,
   recordSubmission, submittedItems,
 } from './store/reader-answers.ts';
 import { checkSubmission, progressOf, sessionStates, type StoredState } from './store/reading-state.ts';

@@ -6,6 +6,8 @@
 export const KIT_FORMAT = 'veil-kit';
 export const KIT_VERSION = 1;
 export const KIT_MANIFEST = 'kit.json';
+/** The reader's answer database, kept in the kit folder beside the kit's own files (app/store/reader-answers.ts). */
+export const ANSWERS_FILE = 'answers.sqlite';
 
 /**
  * likert: a scale from `low` (1) to `high` (`points`); yes-no: points 2, scored 1 = no, 2 = yes;

@@ -12,12 +12,19 @@ import { createHash, createPrivateKey, createPublicKey, generateKeyPairSync, sig
 import { existsSync, readdirSync, readFileSync, statSync, writeFileSync } from 'node:fs';
 import { join, relative, resolve, sep } from 'node:path';
 import { canonicalJson } from './canonical-json.ts';
+import { ANSWERS_FILE } from './kit-format.ts';
 
 export const INTEGRITY_FILE = 'integrity.json';
-/** Files that live in a kit folder but change while reading, so they are not listed. */
-// The reader's answer database and SQLite's files beside it (a rollback journal can be left by a kill
-// in the moment before the database is switched to WAL), results and overrides are not kit files.
-const UNLISTED = [/^answers\.sqlite(-wal|-shm|-journal|\.lock)?$/, /^results(\/|$)/, /^overrides(\/|$)/, new RegExp(`^${INTEGRITY_FILE.replace('.', '\\.')}$`)];
+const exactly = (name: string): string => name.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+/**
+ * Files that live in a kit folder but change while reading, so they are not listed: the reader's
+ * answer database with SQLite's files beside it (its WAL, shared memory and rollback journal; a kill
+ * in the moment before a new database is switched to WAL leaves the journal) and Veil's write lock,
+ * exported results, washout overrides and this list itself.
+ */
+const UNLISTED = [
+  new RegExp(`^${exactly(ANSWERS_FILE)}(-wal|-shm|-journal|\\.lock)?$`), /^results(\/|$)/, /^overrides(\/|$)/, new RegExp(`^${exactly(INTEGRITY_FILE)}$`),
+];
 
 export interface KitFileEntry { path: string; bytes: number; sha256: string }
 

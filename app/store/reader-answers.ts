@@ -11,8 +11,6 @@
 import type Database from 'better-sqlite3';
 import { audit, openDatabase, type OpenedDatabase } from './open.ts';
 
-export const ANSWERS_FILE = 'answers.sqlite';
-
 export type FlagReason = 'does-not-load' | 'unrelated-artifact' | 'other';
 
 export function openReaderAnswers(file: string, kitId: string, reader: string): OpenedDatabase {
