@@ -40,28 +40,30 @@ async function call(host: ServedStudy, op: string, body: unknown): Promise<unkno
   return res.json();
 }
 
-function checkDatabase(file: string, acked: Ack[]): { submissions: number } {
-  if (!existsSync(file)) {
-    // Killed before the kit was first opened: nothing can have been acknowledged.
-    expect(acked).toEqual([]);
-    return { submissions: 0 };
-  }
-  if (existsSync(`${file}-journal`)) {
-    // Killed while the new file was still in rollback-journal mode, before it was switched to WAL
-    // and before any table: the next host rolls the journal back (this read-only check cannot).
-    expect(acked).toEqual([]);
-    return { submissions: 0 };
-  }
+/**
+ * The answer database with its tables, or null when the kill came before they were committed, so
+ * that nothing can have been acknowledged yet: no file (the kit was never opened); a rollback
+ * journal beside it (killed before the switch to WAL; the next host rolls it back, which this
+ * read-only check cannot); or a file whose migrations had not committed (each is one transaction;
+ * the next host finishes them).
+ */
+function committedDatabase(file: string): Database.Database | null {
+  if (!existsSync(file) || existsSync(`${file}-journal`)) return null;
   const db = new Database(file, { readonly: true });
+  expect(db.pragma('integrity_check', { simple: true })).toBe('ok');
+  const tables = db.prepare("SELECT COUNT(*) AS n FROM sqlite_master WHERE type = 'table' AND name IN ('answer', 'submission')").get() as { n: number };
+  if (tables.n === 2) return db;
+  db.close();
+  return null;
+}
+
+function checkDatabase(file: string, acked: Ack[]): { submissions: number } {
+  const db = committedDatabase(file);
+  if (!db) {
+    expect(acked).toEqual([]);
+    return { submissions: 0 };
+  }
   try {
-    expect(db.pragma('integrity_check', { simple: true })).toBe('ok');
-    const tables = db.prepare("SELECT COUNT(*) AS n FROM sqlite_master WHERE type = 'table' AND name IN ('answer', 'submission')").get() as { n: number };
-    if (tables.n < 2) {
-      // Killed after the file was made but before all its tables were committed (each migration is
-      // one transaction): nothing can have been acknowledged, and the next host finishes the tables.
-      expect(acked).toEqual([]);
-      return { submissions: 0 };
-    }
     const inForce = db.prepare('SELECT score FROM answer WHERE item_id = ? AND question_id = ? AND seconds <= ? ORDER BY seconds DESC LIMIT 1');
     const submission = db.prepare('SELECT COUNT(*) AS n FROM submission WHERE item_id = ? AND seconds = ?');
     for (const a of acked) {
